@@ -1,0 +1,42 @@
+// Production server: adapter-node's handler on our own HTTP server, so WebSocket upgrades on /ws/...
+// reach the app's socket hub (registered on globalThis by the app when it starts).
+import { createServer } from 'node:http';
+
+const UPGRADE_KEY = Symbol.for('stillpoint.upgrade');
+const port = Number(process.env.PORT ?? 3000);
+const host = process.env.HOST ?? '127.0.0.1';
+// SvelteKit's CSRF check and better-auth compare the request's Origin with this; plain HTTP on
+// localhost unless the deployment says otherwise. Set before the handler is loaded (it reads env then).
+process.env.ORIGIN ??= `http://localhost:${port}`;
+const { handler } = await import('./build/handler.js');
+
+const server = createServer(handler);
+
+server.on('upgrade', (request, socket, head) => {
+	const upgrade = globalThis[UPGRADE_KEY];
+	if (request.url?.startsWith('/ws/') && typeof upgrade === 'function') {
+		upgrade(request, socket, head);
+	} else {
+		socket.end('HTTP/1.1 404 Not Found\r\nConnection: close\r\n\r\n');
+	}
+});
+
+server.listen(port, host, () => {
+	console.log(`Stillpoint listening on http://${host}:${port}`);
+});
+
+// Graceful shutdown: stop taking connections, let the app flush pending writes, then exit.
+let closing = false;
+function shutdown(signal) {
+	if (closing) return;
+	closing = true;
+	console.log(`${signal}: shutting down`);
+	const done = globalThis[Symbol.for('stillpoint.shutdown')];
+	Promise.resolve(typeof done === 'function' ? done() : undefined).finally(() => {
+		server.close(() => process.exit(0));
+		server.closeAllConnections?.();
+		setTimeout(() => process.exit(0), 5000).unref();
+	});
+}
+process.on('SIGTERM', () => shutdown('SIGTERM'));
+process.on('SIGINT', () => shutdown('SIGINT'));

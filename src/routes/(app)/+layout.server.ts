@@ -1,0 +1,15 @@
+import { AREAS } from '$lib/navigation';
+import { roleMayOpen } from '$lib/server/auth/access';
+import { requireUser } from '$lib/server/auth/guard';
+import { labName } from '$lib/server/repositories/settings';
+import { appDatabase } from '$lib/server/db';
+import type { LayoutServerLoad } from './$types';
+
+export const load = (async ({ locals, url }) => {
+	const user = requireUser(locals, url);
+	return {
+		user,
+		areas: AREAS.filter((a) => roleMayOpen(user.role, a.path)).map((a) => a.path),
+		labName: await labName(appDatabase().db)
+	};
+}) satisfies LayoutServerLoad;
