@@ -8,7 +8,7 @@ import type { Role } from './types';
 export async function provisionUser(auth: Auth, input: { email: string; name: string; password: string; role: Role }): Promise<string> {
 	const ctx = await auth.$context;
 	const hash = await ctx.password.hash(input.password);
-	const user = await ctx.internalAdapter.createUser({ email: input.email, name: input.name, emailVerified: true, role: input.role });
+	const user = await ctx.internalAdapter.createUser({ email: input.email, name: input.name, emailVerified: true, role: input.role }, { method: 'admin' });
 	await ctx.internalAdapter.linkAccount({ accountId: user.id, providerId: 'credential', password: hash, userId: user.id });
 	return user.id;
 }

@@ -35,11 +35,12 @@ export const DEMO_CELLS: { serial: string; fixed_point: FixedPointCode; maker: s
 	{ serial: 'KV-Ag-01', fixed_point: 'Ag', maker: 'in-house', immersion_depth_mm: 170, purity_statement: '99.9999 % (GDMS assay)', purity_percent: 99.9999, sealed: 1, notes: 'Used with the high-temperature SPRT only' }
 ];
 
+// Each thermometer's current calibration: invented coefficients of a plausible size (|a| ~ 1e-4).
 export const DEMO_THERMOMETERS = [
-	{ serial: 'KV-S-4471', kind: 'SPRT' as const, maker: 'in-house stock', nominal_ohm: 25.5, r_tpw_ohm: 25.548312, notes: 'Working standard, 83.8 K to 692.7 K' },
-	{ serial: 'KV-S-5182', kind: 'SPRT' as const, maker: 'in-house stock', nominal_ohm: 25.5, r_tpw_ohm: 25.501947, notes: 'Reference standard' },
-	{ serial: 'KV-S-6020', kind: 'SPRT' as const, maker: 'in-house stock', nominal_ohm: 25.5, r_tpw_ohm: 25.613508, notes: 'Check standard' },
-	{ serial: 'KV-H-0907', kind: 'HTSPRT' as const, maker: 'in-house stock', nominal_ohm: 2.5, r_tpw_ohm: 2.5361849, notes: 'High-temperature SPRT to 961.78 °C' }
+	{ serial: 'KV-S-4471', kind: 'SPRT' as const, maker: 'in-house stock', nominal_ohm: 25.5, r_tpw_ohm: 25.548312, notes: 'Working standard, 0 °C to 419.527 °C', subrange: 'TPW-Sn-Zn', coefficients: { a: -1.1873e-4, b: -1.0215e-5 } },
+	{ serial: 'KV-S-5182', kind: 'SPRT' as const, maker: 'in-house stock', nominal_ohm: 25.5, r_tpw_ohm: 25.501947, notes: 'Reference standard, 0 °C to 660.323 °C', subrange: 'TPW-Sn-Zn-Al', coefficients: { a: -9.6410e-5, b: -1.3370e-5, c: 2.1120e-6 } },
+	{ serial: 'KV-S-6020', kind: 'SPRT' as const, maker: 'in-house stock', nominal_ohm: 25.5, r_tpw_ohm: 25.613508, notes: 'Check standard, 83.8058 K to 273.16 K', subrange: 'Ar-Hg-TPW', coefficients: { a: -1.4020e-4, b: -2.3800e-5 } },
+	{ serial: 'KV-H-0907', kind: 'HTSPRT' as const, maker: 'in-house stock', nominal_ohm: 2.5, r_tpw_ohm: 2.5361849, notes: 'High-temperature SPRT to 961.78 °C', subrange: 'TPW-Sn-Zn-Al-Ag', coefficients: { a: -1.6250e-4, b: -1.1900e-5, c: 1.8400e-6, d: 3.1000e-5 } }
 ];
 
 export const DEMO_RESISTORS = [

@@ -3,6 +3,7 @@ import type { Auth } from '../auth/better-auth';
 import { provisionUser } from '../auth/provision';
 import { putSetting } from '../repositories/settings';
 import { recordAudit } from '../repositories/audit';
+import { withAluminiumRatio } from '../../metrology/index';
 import { DEMO_BENCHES, DEMO_CELLS, DEMO_LAB_NAME, DEMO_RESISTORS, DEMO_THERMOMETERS, DEMO_USERS } from './scenario';
 
 const DAY_MS = 86_400_000;
@@ -55,9 +56,14 @@ export async function seedDemo(db: DB, auth: Auth, nowMs = Date.now()): Promise<
 	}
 	const thermometerIds: Record<string, number> = {};
 	for (const t of DEMO_THERMOMETERS) {
-		const { r_tpw_ohm, ...rest } = t;
+		const { r_tpw_ohm, subrange, coefficients, ...rest } = t;
 		const row = await db.insertInto('thermometer').values({ ...rest, created_at: created, retired_at: null }).returning('id').executeTakeFirstOrThrow();
 		thermometerIds[t.serial] = row.id;
+		const k = subrange === 'TPW-Sn-Zn-Al-Ag' ? withAluminiumRatio(coefficients) : coefficients;
+		await db
+			.insertInto('calibration')
+			.values({ thermometer_id: row.id, version: 1, subrange, coefficients_json: JSON.stringify(k), r_tpw_ohm, runs_json: '[]', uncertainty_json: '{}', status: 'current', notes: 'Demo calibration (invented coefficients)', created_by: null, created_at: nowMs - 400 * DAY_MS })
+			.execute();
 		// A check at the triple point of water about every ten weeks for three years: a slow upward creep
 		// (oxidation, a few tenths of a millikelvin equivalent a year) plus measurement scatter.
 		const checks = 16;

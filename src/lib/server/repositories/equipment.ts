@@ -33,3 +33,15 @@ export async function latestRtpwByThermometer(db: DB): Promise<Map<number, { r_t
 	}
 	return out;
 }
+
+/** Each thermometer's current calibration (sub-range and deviation coefficients), if it has one. */
+export async function currentCalibrations(db: DB) {
+	const rows = await db
+		.selectFrom('calibration')
+		.innerJoin('thermometer', 'thermometer.id', 'calibration.thermometer_id')
+		.select(['calibration.id', 'calibration.thermometer_id', 'calibration.version', 'calibration.subrange', 'calibration.coefficients_json', 'calibration.r_tpw_ohm', 'calibration.created_at', 'thermometer.serial'])
+		.where('calibration.status', '=', 'current')
+		.orderBy('thermometer.serial')
+		.execute();
+	return rows.map(({ coefficients_json, ...r }) => ({ ...r, coefficients: JSON.parse(coefficients_json) as Record<string, number> }));
+}
