@@ -8,7 +8,7 @@ const dir = join(ROOT, 'test-artifacts');
 mkdirSync(dir, { recursive: true });
 const dbPath = join(dir, 'e2e.db');
 for (const suffix of ['', '-wal', '-shm', '.secret']) rmSync(dbPath + suffix, { force: true });
-await seededDatabase(dbPath);
+await seededDatabase(dbPath, { pastRuns: true });
 const server = await startTestServer({ dbPath, port });
 console.log(`e2e server on ${server.baseUrl}`);
 const stop = () => server.stop().then(() => process.exit(0));

@@ -25,10 +25,14 @@ export async function freePort(): Promise<number> {
 }
 
 /** Migrates and seeds a fresh database file with the demo laboratory. */
-export async function seededDatabase(dbPath = join(mkdtempSync(join(tmpdir(), 'stillpoint-')), 'test.db')): Promise<{ dbPath: string; seed: SeedResult }> {
+export async function seededDatabase(
+	dbPath = join(mkdtempSync(join(tmpdir(), 'stillpoint-')), 'test.db'),
+	options: { pastRuns?: boolean } = {}
+): Promise<{ dbPath: string; seed: SeedResult }> {
 	const db = createKysely(openSqlite(dbPath));
 	await migrateToLatest(db);
-	const seed = await seedDemo(db, createAuth({ db, secret: TEST_SECRET }));
+	// Past runs (simulated, a few seconds) only where a test needs them.
+	const seed = await seedDemo(db, createAuth({ db, secret: TEST_SECRET, baseURL: 'http://localhost' }), Date.now(), { pastRuns: options.pastRuns ?? false });
 	await db.destroy();
 	return { dbPath, seed };
 }

@@ -1,6 +1,7 @@
 import type { DB } from '../db';
 import type { Auth } from '../auth/better-auth';
 import { provisionUser } from '../auth/provision';
+import { seedPastRuns } from './history';
 import { putSetting } from '../repositories/settings';
 import { recordAudit } from '../repositories/audit';
 import { withAluminiumRatio } from '../../metrology/index';
@@ -29,7 +30,7 @@ export interface SeedResult {
 }
 
 /** Loads the demo laboratory into an empty, migrated database. */
-export async function seedDemo(db: DB, auth: Auth, nowMs = Date.now()): Promise<SeedResult> {
+export async function seedDemo(db: DB, auth: Auth, nowMs = Date.now(), options: { pastRuns?: boolean } = {}): Promise<SeedResult> {
 	const existing = await db.selectFrom('bench').select('id').limit(1).executeTakeFirst();
 	if (existing) throw new Error('The database already holds a laboratory; the demo seed needs an empty one.');
 
@@ -79,6 +80,8 @@ export async function seedDemo(db: DB, auth: Auth, nowMs = Date.now()): Promise<
 				.execute();
 		}
 	}
+	const seeded = { userIds, benchIds, cellIds, thermometerIds, resistorIds };
+	if (options.pastRuns !== false) await seedPastRuns(db, seeded, nowMs);
 	await recordAudit(db, { actor: { id: null, label: 'demo seed' }, action: 'lab.seed', objectType: 'lab', objectId: 'demo', summary: `Loaded the demo laboratory “${DEMO_LAB_NAME}”`, atMs: nowMs });
-	return { userIds, benchIds, cellIds, thermometerIds, resistorIds };
+	return seeded;
 }

@@ -1,0 +1,43 @@
+// `npm run demo`: a fresh demo laboratory on http://localhost:3000 — migrations, seed, the built app.
+// Stops with Ctrl-C. The demo database lives in data/demo.db and is made anew on every start.
+import { spawn, spawnSync } from 'node:child_process';
+import { rmSync } from 'node:fs';
+import { resolve } from 'node:path';
+import { createKysely, migrateToLatest, openSqlite } from '../src/lib/server/db/index';
+import { createAuth } from '../src/lib/server/auth/better-auth';
+import { authSecret } from '../src/lib/server/auth/secret';
+import { seedDemo } from '../src/lib/server/demo/seed';
+import { DEMO_USERS } from '../src/lib/server/demo/scenario';
+
+const port = Number(process.env.PORT ?? 3000);
+const origin = `http://localhost:${port}`;
+const dbPath = resolve(process.env.STILLPOINT_DB ?? 'data/demo.db');
+
+console.log('Building the app…');
+const build = spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { stdio: 'inherit' });
+if (build.status !== 0) process.exit(build.status ?? 1);
+
+for (const suffix of ['', '-wal', '-shm']) rmSync(dbPath + suffix, { force: true });
+const db = createKysely(openSqlite(dbPath));
+await migrateToLatest(db);
+console.log('Seeding the demo laboratory (past runs are simulated, a few seconds)…');
+await seedDemo(db, createAuth({ db, secret: authSecret(dbPath), baseURL: origin }));
+await db.destroy();
+
+const server = spawn(process.execPath, ['server.js'], {
+	stdio: 'inherit',
+	env: { ...process.env, PORT: String(port), ORIGIN: origin, STILLPOINT_DB: dbPath }
+});
+
+const width = Math.max(...DEMO_USERS.map((u) => u.email.length));
+console.log(`\nStillpoint demo: open ${origin} and sign in as one of\n`);
+for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(11)} ${u.email.padEnd(width)}  ${u.password}`);
+console.log('\nCtrl-C stops the demo.\n');
+
+const stop = () => {
+	server.kill('SIGTERM');
+	setTimeout(() => process.exit(0), 3000).unref();
+};
+process.on('SIGINT', stop);
+process.on('SIGTERM', stop);
+server.on('exit', (code) => process.exit(code ?? 0));
