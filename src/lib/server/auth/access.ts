@@ -3,7 +3,8 @@ import type { Role, SessionUser } from './types';
 /**
  * Who may open which path. One table, consulted by `handle` on every request and by the role-matrix
  * test. `public`: anyone; `bench-token`: instrument endpoints that check their own bearer token;
- * `signed-in`: any role; a list: only those roles. The longest matching prefix wins.
+ * `signed-in`: any role; a list: only those roles. The longest matching prefix wins. A `*` segment
+ * matches any one path segment (e.g. a run id).
  */
 export type Access = 'public' | 'bench-token' | 'signed-in' | readonly Role[];
 
@@ -15,6 +16,13 @@ export const ACCESS_RULES: readonly { prefix: string; access: Access }[] = [
 	{ prefix: '/api/v1/openapi.json', access: 'public' },
 	{ prefix: '/api/v1/bench', access: 'bench-token' },
 	{ prefix: '/api/v1/runs', access: 'signed-in' },
+	// Instruments post readings with their bench token; the endpoint checks it (src/lib/server/ingest).
+	{ prefix: '/api/v1/runs/*/readings', access: 'bench-token' },
+	{ prefix: '/instruments', access: ['supervisor', 'admin'] },
+	// The guide for instrument programmers holds no secrets: every signed-in role may read it.
+	{ prefix: '/instruments/guide', access: 'signed-in' },
+	{ prefix: '/runs/new', access: ['technician', 'supervisor', 'admin'] },
+	{ prefix: '/runs/upload', access: ['engineer', 'supervisor', 'admin'] },
 	{ prefix: '/compare', access: ['engineer', 'supervisor', 'admin'] },
 	{ prefix: '/alerts', access: ['supervisor', 'engineer', 'admin'] },
 	{ prefix: '/admin', access: ['admin'] },
@@ -23,6 +31,12 @@ export const ACCESS_RULES: readonly { prefix: string; access: Access }[] = [
 
 function matches(prefix: string, path: string): boolean {
 	if (prefix === '/') return true;
+	if (prefix.includes('*')) {
+		const want = prefix.split('/');
+		const have = path.split('/');
+		if (have.length < want.length) return false;
+		return want.every((seg, i) => seg === '*' ? have[i] !== '' : seg === have[i]);
+	}
 	return path === prefix || path.startsWith(prefix.endsWith('/') ? prefix : `${prefix}/`);
 }
 
