@@ -8,6 +8,9 @@ const host = process.env.HOST ?? '127.0.0.1';
 // SvelteKit's CSRF check and better-auth compare the request's Origin with this; plain HTTP on
 // localhost unless the deployment says otherwise. Set before the handler is loaded (it reads env then).
 process.env.ORIGIN ??= `http://localhost:${port}`;
+// adapter-node refuses bodies past BODY_SIZE_LIMIT (default 512K). The instrument API allows 1 MiB per
+// request (src/lib/server/ingest/limits.ts) and answers 413 itself, so the limit here is the same.
+process.env.BODY_SIZE_LIMIT ??= '1M';
 const { handler } = await import('./build/handler.js');
 
 const server = createServer(handler);

@@ -1,4 +1,5 @@
-// `npm run demo`: a fresh demo laboratory on http://localhost:3000 — migrations, seed, the built app.
+// `npm run demo`: a fresh demo laboratory on http://localhost:3000 — migrations, seed, the built app,
+// and simulated benches streaming live realizations into it.
 // Stops with Ctrl-C. The demo database lives in data/demo.db and is made anew on every start.
 import { spawn, spawnSync } from 'node:child_process';
 import { rmSync } from 'node:fs';
@@ -8,6 +9,7 @@ import { createAuth } from '../src/lib/server/auth/better-auth';
 import { authSecret } from '../src/lib/server/auth/secret';
 import { seedDemo } from '../src/lib/server/demo/seed';
 import { DEMO_USERS } from '../src/lib/server/demo/scenario';
+import { startLiveBenches } from './demo-benches';
 
 const port = Number(process.env.PORT ?? 3000);
 const origin = `http://localhost:${port}`;
@@ -21,12 +23,30 @@ for (const suffix of ['', '-wal', '-shm']) rmSync(dbPath + suffix, { force: true
 const db = createKysely(openSqlite(dbPath));
 await migrateToLatest(db);
 console.log('Seeding the demo laboratory (past runs are simulated, a few seconds)…');
-await seedDemo(db, createAuth({ db, secret: authSecret(dbPath), baseURL: origin }));
-await db.destroy();
+const seeded = await seedDemo(db, createAuth({ db, secret: authSecret(dbPath), baseURL: origin }));
 
 const server = spawn(process.execPath, ['server.js'], {
 	stdio: 'inherit',
 	env: { ...process.env, PORT: String(port), ORIGIN: origin, STILLPOINT_DB: dbPath }
+});
+
+// Wait for the app, then let the simulated benches stream into it.
+for (let i = 0; ; i++) {
+	try {
+		if ((await fetch(`${origin}/api/v1/health`)).ok) break;
+	} catch {
+		/* not up yet */
+	}
+	if (i > 200) throw new Error('the app did not start');
+	await new Promise((r) => setTimeout(r, 100));
+}
+const person = (role: string) => {
+	const u = DEMO_USERS.find((d) => d.role === role)!;
+	return { id: seeded.userIds[u.email], email: u.email, name: u.name, role: u.role };
+};
+const quiet = process.argv.includes('--quiet');
+const stopBenches = await startLiveBenches(db, origin, person('technician'), person('supervisor'), (m) => {
+	if (!quiet) console.log(`[bench] ${m}`);
 });
 
 const width = Math.max(...DEMO_USERS.map((u) => u.email.length));
@@ -35,7 +55,7 @@ for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(11)} ${u.email.padEnd
 console.log('\nCtrl-C stops the demo.\n');
 
 const stop = () => {
-	server.kill('SIGTERM');
+	void stopBenches().finally(() => server.kill('SIGTERM'));
 	setTimeout(() => process.exit(0), 3000).unref();
 };
 process.on('SIGINT', stop);

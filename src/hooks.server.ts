@@ -3,12 +3,15 @@ import { building } from '$app/environment';
 import { svelteKitHandler } from 'better-auth/svelte-kit';
 import { appDatabase } from '$lib/server/db';
 import { appAuth } from '$lib/server/auth';
-import { decideAccess } from '$lib/server/auth/access';
+import { accessFor, decideAccess } from '$lib/server/auth/access';
 import { toSessionUser } from '$lib/server/auth/session';
 import { apiError } from '$lib/server/http/api-error';
+import { registerSocketHooks } from '$lib/server/live/upgrade';
 
 export const init: ServerInit = async () => {
 	await appDatabase().ready;
+	// WebSocket upgrades (/ws/...) and graceful shutdown are handed to server.js through globalThis.
+	if (!building) registerSocketHooks();
 };
 
 function isApi(path: string): boolean {
@@ -22,6 +25,13 @@ export const handle: Handle = async ({ event, resolve }) => {
 	const auth = appAuth();
 	const path = event.url.pathname;
 
+	// Instrument endpoints authenticate by bench token, never by session: skip the session lookup, which
+	// would otherwise cost more than storing a batch of readings.
+	if (accessFor(path) === 'bench-token') {
+		event.locals.user = null;
+		event.locals.sessionId = null;
+		return resolve(event);
+	}
 	const session = await auth.api.getSession({ headers: event.request.headers });
 	event.locals.user = session ? toSessionUser(session.user) : null;
 	event.locals.sessionId = event.locals.user ? (session?.session.id ?? null) : null;

@@ -24,6 +24,7 @@ export const ACCESS_RULES: readonly { prefix: string; access: Access }[] = [
 	{ prefix: '/runs/new', access: ['technician', 'supervisor', 'admin'] },
 	{ prefix: '/runs/upload', access: ['engineer', 'supervisor', 'admin'] },
 	{ prefix: '/compare', access: ['engineer', 'supervisor', 'admin'] },
+	{ prefix: '/calibrations', access: ['engineer', 'supervisor', 'admin'] },
 	{ prefix: '/alerts', access: ['supervisor', 'engineer', 'admin'] },
 	{ prefix: '/admin', access: ['admin'] },
 	{ prefix: '/api/v1/admin', access: ['admin'] }

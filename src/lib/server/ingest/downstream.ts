@@ -1,0 +1,73 @@
+// Where the reducer runs: in a worker thread in the built server (the second core does the reduction
+// and the plateau tracking while the main thread parses, validates and commits), in-process in the
+// Vite dev server and in unit tests (where this module is TypeScript a worker cannot load).
+//
+// The worker is this very module started again as a worker entry: the built chunk that holds it is
+// plain ESM, so no separate bundle entry is needed.
+
+import { isMainThread, parentPort, Worker, workerData } from 'node:worker_threads';
+import SQLite from 'better-sqlite3';
+import { Reducer, type ReducerUpdate } from './reducer';
+
+export interface Downstream {
+	notify(runId: number): void;
+	drop(runId: number): void;
+	close(): Promise<void>;
+	readonly mode: 'worker' | 'inline';
+}
+
+type ToWorker = { type: 'notify'; runId: number } | { type: 'drop'; runId: number };
+const WORKER_FLAG = 'stillpoint-reducer';
+
+function transferables(u: ReducerUpdate): ArrayBuffer[] {
+	return Object.values(u.columns).map((a) => (a as Float64Array | Uint8Array).buffer as ArrayBuffer);
+}
+
+export function createDownstream(opts: { sqlite: SQLite.Database; dbPath: string; onUpdate: (u: ReducerUpdate) => void; inline?: boolean }): Downstream {
+	const url = import.meta.url;
+	const canWorker = !opts.inline && opts.dbPath !== ':memory:' && url.endsWith('.js') && process.env.STILLPOINT_REDUCER !== 'inline';
+	if (!canWorker) {
+		const reducer = new Reducer(opts.sqlite, opts.onUpdate);
+		reducer.loadRecording();
+		return { mode: 'inline', notify: (id) => reducer.notify(id), drop: (id) => reducer.drop(id), close: async () => {} };
+	}
+	let worker: Worker | null = null;
+	let closing = false;
+	const start = () => {
+		const w = new Worker(new URL(url), { workerData: { flag: WORKER_FLAG, dbPath: opts.dbPath } });
+		w.on('message', (u: ReducerUpdate) => opts.onUpdate(u));
+		w.on('error', (e) => console.error('reducer worker failed', e));
+		w.on('exit', (code) => {
+			worker = null;
+			// A fresh worker replays every recording run from storage, so nothing is lost by a restart.
+			if (!closing) {
+				console.error(`reducer worker exited (${code}); restarting`);
+				setTimeout(() => (worker = start()), 500).unref();
+			}
+		});
+		w.unref();
+		return w;
+	};
+	worker = start();
+	const post = (m: ToWorker) => worker?.postMessage(m);
+	return {
+		mode: 'worker',
+		notify: (runId) => post({ type: 'notify', runId }),
+		drop: (runId) => post({ type: 'drop', runId }),
+		async close() {
+			closing = true;
+			await worker?.terminate();
+		}
+	};
+}
+
+if (!isMainThread && (workerData as { flag?: string } | null)?.flag === WORKER_FLAG && parentPort) {
+	const port = parentPort;
+	const sqlite = new SQLite((workerData as { dbPath: string }).dbPath);
+	sqlite.pragma('busy_timeout = 5000');
+	// This connection only reads: it must never take the write lock from the ingest.
+	sqlite.pragma('query_only = ON');
+	const reducer = new Reducer(sqlite, (u) => port.postMessage(u, transferables(u)));
+	port.on('message', (m: ToWorker) => (m.type === 'notify' ? reducer.notify(m.runId) : reducer.drop(m.runId)));
+	reducer.loadRecording();
+}

@@ -1,0 +1,300 @@
+// The one writer of readings: group commit on better-sqlite3.
+//
+// Submissions (an HTTP batch, a WebSocket frame) queue up; a group closes GROUP_WINDOW_MS after its
+// first submission or at GROUP_MAX_ROWS rows, whichever comes first, and is written in one IMMEDIATE
+// transaction with prepared statements under synchronous=FULL, so the commit is on disk (fsync of the
+// WAL) before any submission in it is answered. A crash therefore loses nothing acknowledged.
+//
+// It shares the app's sqlite handle (appDatabase().sqlite): the handle is used by Kysely too, and a
+// Kysely transaction may be open across an await. Writing then would put our rows into someone else's
+// transaction, so a group waits (a millisecond at a time) until the handle is outside a transaction.
+// Sharing also means no lock contention inside the process; other processes meet busy_timeout.
+
+import type SQLite from 'better-sqlite3';
+import type { ValidReading } from './validate';
+
+export interface Submission {
+	runId: number;
+	/** Token that sent it, for bench_token.last_used_at; null for internal callers. */
+	tokenId: number | null;
+	readings: ValidReading[];
+	done: (result: SubmissionResult) => void;
+}
+
+export type SubmissionResult =
+	| {
+			ok: true;
+			accepted: number;
+			duplicates: number;
+			/** run.highest_seq after the commit */
+			highestDurableSeq: number;
+			/** the readings newly stored, in submission order */
+			stored: ValidReading[];
+	  }
+	| { ok: false; code: 'run_not_found' | 'run_not_recording' | 'storage_error' | 'shutting_down'; message: string };
+
+/** What a commit stored, per run, for the reduction / live stage that follows it. */
+export interface CommittedRun {
+	runId: number;
+	stored: ValidReading[];
+	highestDurableSeq: number;
+}
+
+/** Rows per multi-row INSERT on the fast path (6 parameters each; SQLite allows 32 766). */
+const MULTI_ROWS = 100;
+
+class FastPathMiss extends Error {}
+
+export interface WriterOptions {
+	windowMs: number;
+	maxRows: number;
+	lastUsedIntervalMs: number;
+	now?: () => number;
+	/** Called synchronously after each successful commit, before any submission is answered. */
+	onCommit?: (runs: CommittedRun[]) => void;
+}
+
+export interface WriterStats {
+	commits: number;
+	rows: number;
+	pendingRows: number;
+	lastGroupRows: number;
+	busyRetries: number;
+}
+
+export class GroupCommitWriter {
+	private queue: Submission[] = [];
+	private queuedRows = 0;
+	private timer: NodeJS.Timeout | null = null;
+	private immediate: NodeJS.Immediate | null = null;
+	private closed = false;
+	private drainWaiters: (() => void)[] = [];
+	private readonly lastUsedWrittenMs = new Map<number, number>();
+	/** set for one retry when the fast path met a row it did not expect (see writeGroup) */
+	private slowOnce = false;
+	private readonly params: (number | null)[] = new Array(MULTI_ROWS * 6);
+	private readonly statements: {
+		insert: SQLite.Statement;
+		insertMany: SQLite.Statement;
+		runState: SQLite.Statement<[number], { state: string; highest_seq: number }>;
+		updateRun: SQLite.Statement;
+		touchToken: SQLite.Statement;
+	};
+	private readonly now: () => number;
+	readonly stats: WriterStats = { commits: 0, rows: 0, pendingRows: 0, lastGroupRows: 0, busyRetries: 0 };
+
+	constructor(
+		private readonly sqlite: SQLite.Database,
+		private readonly o: WriterOptions
+	) {
+		this.now = o.now ?? Date.now;
+		this.statements = {
+			// OR IGNORE: the primary key (run_id, seq) turns a repeated seq into "0 changes" = a duplicate.
+			insert: sqlite.prepare('insert or ignore into reading (run_id, seq, time_ms, ratio, current_ma, channel) values (?, ?, ?, ?, ?, ?)'),
+			insertMany: sqlite.prepare(`insert or ignore into reading (run_id, seq, time_ms, ratio, current_ma, channel) values ${new Array(MULTI_ROWS).fill('(?, ?, ?, ?, ?, ?)').join(', ')}`),
+			runState: sqlite.prepare('select state, highest_seq from run where id = ?'),
+			updateRun: sqlite.prepare('update run set reading_count = reading_count + ?, highest_seq = max(highest_seq, ?), last_reading_at = ? where id = ?'),
+			touchToken: sqlite.prepare('update bench_token set last_used_at = ? where id = ?')
+		};
+	}
+
+	get pendingRows(): number {
+		return this.queuedRows;
+	}
+
+	submit(s: Submission): void {
+		if (this.closed) {
+			s.done({ ok: false, code: 'shutting_down', message: 'The server is shutting down; retry shortly.' });
+			return;
+		}
+		this.queue.push(s);
+		this.queuedRows += s.readings.length;
+		this.stats.pendingRows = this.queuedRows;
+		if (this.queuedRows >= this.o.maxRows) this.flushSoon();
+		else if (!this.timer) this.timer = setTimeout(() => this.flush(), this.o.windowMs);
+	}
+
+	/** Promise form for HTTP handlers. */
+	write(runId: number, tokenId: number | null, readings: ValidReading[]): Promise<SubmissionResult> {
+		return new Promise((done) => this.submit({ runId, tokenId, readings, done }));
+	}
+
+	/** Writes what is queued, then refuses new submissions (graceful shutdown). */
+	async close(): Promise<void> {
+		this.closed = true;
+		while (this.queue.length > 0) {
+			this.flush();
+			if (this.queue.length > 0) await new Promise((r) => setTimeout(r, 2));
+		}
+	}
+
+	/** Resolves once everything queued so far is committed (or refused). */
+	drained(): Promise<void> {
+		if (this.queue.length === 0) return Promise.resolve();
+		return new Promise((r) => this.drainWaiters.push(r));
+	}
+
+	private flushSoon(): void {
+		if (this.immediate) return;
+		this.immediate = setImmediate(() => {
+			this.immediate = null;
+			this.flush();
+		});
+	}
+
+	private retryLater(): void {
+		if (this.timer) return;
+		this.timer = setTimeout(() => this.flush(), 1);
+	}
+
+	/** Writes one group. Synchronous: nothing else runs on the handle while it does. */
+	flush(): void {
+		if (this.timer) {
+			clearTimeout(this.timer);
+			this.timer = null;
+		}
+		if (this.queue.length === 0) return;
+		if (this.sqlite.inTransaction) return this.retryLater();
+		// Take submissions up to the row cap (a single submission is never split).
+		let take = 0;
+		let rows = 0;
+		while (take < this.queue.length && (take === 0 || rows + this.queue[take].readings.length <= this.o.maxRows)) rows += this.queue[take++].readings.length;
+		const group = this.queue.slice(0, take);
+		const results: SubmissionResult[] = new Array(group.length);
+		const committed = new Map<number, CommittedRun>();
+		const nowMs = this.now();
+		try {
+			this.sqlite.pragma('synchronous = FULL');
+			try {
+				this.sqlite.transaction(() => this.writeGroup(group, results, committed, nowMs)).immediate();
+			} finally {
+				this.sqlite.pragma('synchronous = NORMAL');
+			}
+		} catch (e) {
+			if (e instanceof FastPathMiss) {
+				this.slowOnce = true;
+				return this.flushSoon();
+			}
+			const code = (e as { code?: string }).code;
+			if (code === 'SQLITE_BUSY' || code === 'SQLITE_LOCKED') {
+				// Another process holds the write lock beyond busy_timeout: keep the group, try again.
+				this.stats.busyRetries++;
+				return this.retryLater();
+			}
+			const message = `Storage failed: ${(e as Error).message}`;
+			for (let i = 0; i < group.length; i++) results[i] = { ok: false, code: 'storage_error', message };
+			committed.clear();
+			this.lastUsedWrittenMs.clear();
+		}
+		this.slowOnce = false;
+		this.queue.splice(0, take);
+		this.queuedRows -= rows;
+		this.stats.pendingRows = this.queuedRows;
+		if (committed.size > 0) {
+			this.stats.commits++;
+			this.stats.lastGroupRows = rows;
+			try {
+				this.o.onCommit?.([...committed.values()]);
+			} catch (e) {
+				// The rows are durable; a failure downstream (reduction, live) must not fail the ingest.
+				console.error('ingest: post-commit stage failed', e);
+			}
+		}
+		for (let i = 0; i < group.length; i++) group[i].done(results[i]);
+		if (this.queue.length > 0) {
+			if (this.queuedRows >= this.o.maxRows) this.flushSoon();
+			else this.timer = setTimeout(() => this.flush(), this.o.windowMs);
+		} else if (this.drainWaiters.length > 0) {
+			for (const w of this.drainWaiters.splice(0)) w();
+		}
+	}
+
+	private writeGroup(group: Submission[], results: SubmissionResult[], committed: Map<number, CommittedRun>, nowMs: number): void {
+		const { insert, insertMany, runState, updateRun, touchToken } = this.statements;
+		const runs = new Map<number, { ok: boolean; state: string | null; highestSeq: number; added: number }>();
+		// The run's state is read inside the write transaction: a run that stopped recording a moment
+		// ago gets nothing more, however the readings were queued.
+		for (const s of group) {
+			if (!runs.has(s.runId)) {
+				const row = runState.get(s.runId);
+				runs.set(s.runId, { ok: row?.state === 'recording', state: row?.state ?? null, highestSeq: row?.highest_seq ?? -1, added: 0 });
+			}
+		}
+		for (let i = 0; i < group.length; i++) {
+			const s = group[i];
+			const run = runs.get(s.runId)!;
+			if (!run.ok) {
+				results[i] =
+					run.state === null
+						? { ok: false, code: 'run_not_found', message: `Run #${s.runId} does not exist.` }
+						: { ok: false, code: 'run_not_recording', message: `Run #${s.runId} is ${run.state}, not recording.` };
+				continue;
+			}
+			let entry = committed.get(s.runId);
+			if (!entry) committed.set(s.runId, (entry = { runId: s.runId, stored: [], highestDurableSeq: run.highestSeq }));
+			const stored: ValidReading[] = [];
+			// Fast path: a seq above the run's highest stored seq cannot be a duplicate, so such readings go in
+			// 100 to a statement. Anything else takes the row-by-row INSERT OR IGNORE path, after the
+			// fast rows so far are written (a repeated seq in the batch must meet its first copy).
+			const fast: ValidReading[] = [];
+			const flushFast = (all: boolean) => {
+				let i = 0;
+				for (; fast.length - i >= MULTI_ROWS; i += MULTI_ROWS) {
+					const p = this.params;
+					for (let k = 0; k < MULTI_ROWS; k++) {
+						const r = fast[i + k];
+						const o = k * 6;
+						p[o] = s.runId;
+						p[o + 1] = r.seq;
+						p[o + 2] = r.timeMs;
+						p[o + 3] = r.ratio;
+						p[o + 4] = r.currentMilliAmp;
+						p[o + 5] = r.channel;
+					}
+					if (insertMany.run(p).changes !== MULTI_ROWS) throw new FastPathMiss();
+				}
+				if (all) {
+					for (; i < fast.length; i++) {
+						const r = fast[i];
+						if (insert.run(s.runId, r.seq, r.timeMs, r.ratio, r.currentMilliAmp, r.channel).changes !== 1) throw new FastPathMiss();
+					}
+					fast.length = 0;
+				} else fast.splice(0, i);
+			};
+			for (const r of s.readings) {
+				if (r.seq > run.highestSeq && !this.slowOnce) {
+					fast.push(r);
+					stored.push(r);
+					entry.stored.push(r);
+					run.highestSeq = r.seq;
+					if (fast.length >= MULTI_ROWS) flushFast(false);
+					continue;
+				}
+				flushFast(true);
+				if (insert.run(s.runId, r.seq, r.timeMs, r.ratio, r.currentMilliAmp, r.channel).changes === 1) {
+					stored.push(r);
+					entry.stored.push(r);
+					if (r.seq > run.highestSeq) run.highestSeq = r.seq;
+				}
+			}
+			flushFast(true);
+			run.added += stored.length;
+			results[i] = { ok: true, accepted: stored.length, duplicates: s.readings.length - stored.length, highestDurableSeq: -1, stored };
+			if (s.tokenId !== null && nowMs - (this.lastUsedWrittenMs.get(s.tokenId) ?? -Infinity) >= this.o.lastUsedIntervalMs) {
+				touchToken.run(nowMs, s.tokenId);
+				this.lastUsedWrittenMs.set(s.tokenId, nowMs);
+			}
+		}
+		for (const [runId, run] of runs) {
+			if (!run.ok) continue;
+			// last_reading_at is the server's receipt time (what a silence alert needs), not the
+			// instrument's timeMs, which a simulator may run faster than the wall clock.
+			if (run.added > 0) updateRun.run(run.added, run.highestSeq, nowMs, runId);
+			committed.get(runId)!.highestDurableSeq = run.highestSeq;
+		}
+		for (let i = 0; i < group.length; i++) {
+			const r = results[i];
+			if (r.ok) r.highestDurableSeq = runs.get(group[i].runId)!.highestSeq;
+		}
+	}
+}
