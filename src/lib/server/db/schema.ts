@@ -161,6 +161,8 @@ export interface RunEventTable {
 	time_ms: number;
 	kind: string;
 	note: Generated<string>;
+	/** 'immersion-step' events: sensor mid-point below the free surface after the step, m (migration 0005) */
+	depth_m: number | null;
 	created_by: string | null;
 	created_at: number;
 }
@@ -209,6 +211,47 @@ export interface AlertEventTable {
 	resolved_by: string | null;
 	resolved_at: number | null;
 	escalated_at: number | null;
+	/** migration 0006: '<run>:<kind>' — a condition that comes back reopens the alert with this key */
+	dedupe_key: Generated<string>;
+	/** 1 when the condition cleared by itself (hysteresis), 0 when a person closed it */
+	cleared_by_condition: Generated<number>;
+	reopened_at: number | null;
+}
+
+// Alerts outbox, on-duty lists and run sign-off record (migration 0006).
+export type DeliveryState = 'pending' | 'sent' | 'failed';
+export interface AlertDeliveryTable {
+	id: Generated<number>;
+	alert_id: number;
+	reason: 'raised' | 'reopened' | 'escalated';
+	recipients_json: string;
+	subject: string;
+	body_text: string;
+	state: Generated<DeliveryState>;
+	attempts: Generated<number>;
+	next_attempt_at: number;
+	last_error: string | null;
+	message_id: string | null;
+	created_at: number;
+	sent_at: number | null;
+}
+
+export interface AlertDutyTable {
+	user_id: string;
+	tier: 'first' | 'second';
+	added_by: string | null;
+	added_at: number;
+}
+
+export interface RunReviewTable {
+	id: Generated<number>;
+	run_id: number;
+	revision: number;
+	decision: 'signed' | 'returned' | 'revised';
+	comment: Generated<string>;
+	snapshot_json: Generated<string>;
+	decided_by: string | null;
+	decided_at: number;
 }
 
 export interface AuditLogTable {
@@ -228,6 +271,61 @@ export interface LabSettingTable {
 	value_json: string;
 }
 
+// Documents and upload staging (migration 0004).
+export interface DocumentTable {
+	id: Generated<number>;
+	owner_type: 'cell' | 'thermometer';
+	owner_id: number;
+	kind: Generated<'assay' | 'certificate' | 'other'>;
+	title: Generated<string>;
+	filename: string;
+	content_type: string;
+	size_bytes: number;
+	sha256: string;
+	content: Buffer;
+	uploaded_by: string | null;
+	uploaded_at: number;
+}
+
+export type UploadState = 'receiving' | 'received' | 'parsing' | 'parsed' | 'failed' | 'confirmed' | 'discarded';
+
+export interface UploadTable {
+	id: string;
+	purpose: 'run-log' | 'document';
+	state: UploadState;
+	filename: string;
+	size_bytes: number;
+	received_bytes: Generated<number>;
+	parsed_bytes: Generated<number>;
+	mapping_json: Generated<string>;
+	good_rows: Generated<number>;
+	bad_rows: Generated<number>;
+	first_time_ms: number | null;
+	last_time_ms: number | null;
+	message: Generated<string>;
+	run_id: number | null;
+	created_by: string | null;
+	created_at: number;
+	updated_at: number;
+}
+
+export interface UploadRowTable {
+	upload_id: string;
+	seq: number;
+	line: number;
+	time_ms: number;
+	ratio: number;
+	current_ma: number;
+	channel: number;
+}
+
+export interface UploadProblemTable {
+	upload_id: string;
+	line: number;
+	field: string;
+	reason: string;
+}
+
 export interface Database {
 	user: UserTable;
 	session: SessionTable;
@@ -243,8 +341,15 @@ export interface Database {
 	bench_token: BenchTokenTable;
 	alert_rule: AlertRuleTable;
 	alert_event: AlertEventTable;
+	alert_delivery: AlertDeliveryTable;
+	alert_duty: AlertDutyTable;
+	run_review: RunReviewTable;
 	audit_log: AuditLogTable;
 	lab_setting: LabSettingTable;
+	document: DocumentTable;
+	upload: UploadTable;
+	upload_row: UploadRowTable;
+	upload_problem: UploadProblemTable;
 }
 
 export type Bench = Selectable<BenchTable>;
@@ -275,5 +380,9 @@ export type AlertRule = Selectable<AlertRuleTable>;
 export type NewAlertRule = Insertable<AlertRuleTable>;
 export type AlertEvent = Selectable<AlertEventTable>;
 export type NewAlertEvent = Insertable<AlertEventTable>;
+export type AlertDelivery = Selectable<AlertDeliveryTable>;
+export type RunReview = Selectable<RunReviewTable>;
 export type AuditEntry = Selectable<AuditLogTable>;
 export type NewAuditEntry = Insertable<AuditLogTable>;
+export type DocumentRow = Selectable<DocumentTable>;
+export type Upload = Selectable<UploadTable>;
