@@ -23,6 +23,17 @@ const MATRIX: Record<string, Record<Who, Expect>> = {
 	'/admin/users': { anonymous: SIGN_IN, technician: 403, supervisor: 403, engineer: 403, admin: 200 },
 	'/admin/audit': { anonymous: SIGN_IN, technician: 403, supervisor: 403, engineer: 403, admin: 200 },
 	'/sign-out': { anonymous: SIGN_IN, technician: '303 /benches', supervisor: '303 /benches', engineer: '303 /benches', admin: '303 /benches' },
+	'/runs/new': { anonymous: SIGN_IN, technician: 200, supervisor: 200, engineer: 403, admin: 200 },
+	'/runs/upload': { anonymous: SIGN_IN, technician: 403, supervisor: 200, engineer: 200, admin: 200 },
+	'/calibrations': { anonymous: SIGN_IN, technician: 403, supervisor: 200, engineer: 200, admin: 200 },
+	'/instruments': { anonymous: SIGN_IN, technician: 403, supervisor: 200, engineer: 403, admin: 200 },
+	'/instruments/guide': { anonymous: SIGN_IN, technician: 200, supervisor: 200, engineer: 200, admin: 200 },
+	'/api/v1/openapi.json': { anonymous: 200, technician: 200, supervisor: 200, engineer: 200, admin: 200 },
+	// Instrument endpoint: a bench token, never a session, opens it.
+	'/api/v1/bench/run': { anonymous: 401, technician: 401, supervisor: 401, engineer: 401, admin: 401 },
+	// POST-only endpoints: a GET is refused once past the sign-in check.
+	'/api/v1/documents': { anonymous: 401, technician: 405, supervisor: 405, engineer: 405, admin: 405 },
+	'/api/v1/uploads': { anonymous: 401, technician: 405, supervisor: 405, engineer: 405, admin: 405 },
 	'/api/v1/health': { anonymous: 200, technician: 200, supervisor: 200, engineer: 200, admin: 200 },
 	'/api/v1/me': { anonymous: 401, technician: 200, supervisor: 200, engineer: 200, admin: 200 },
 	'/api/v1/admin/users': { anonymous: 401, technician: 403, supervisor: 403, engineer: 403, admin: 200 }

@@ -21,7 +21,7 @@ export const load = (async ({ locals, params }) => {
 	// Reference: the R_TPW the current calibration was computed with; without one, the first check.
 	const reference = calibration ? { ohm: calibration.r_tpw_ohm, source: `R_TPW of calibration v${calibration.version}` } : checks[0] ? { ohm: checks[0].r_tpw_ohm, source: 'first R_TPW check' } : null;
 	const stability = reference ? assessRtpwStability(checks.map((c) => ({ id: c.id, measuredAtMs: c.measured_at, rTpwOhm: c.r_tpw_ohm })), reference.ohm, limitMilliKelvin) : null;
-	return { thermometer, checks, calibration, runs, documents, reference, stability, limitMilliKelvin, canWrite: UPLOAD_ROLES.includes(user.role), nowUtcMinute: new Date().toISOString().slice(0, 16) };
+	return { thermometer, checks, calibration, runs, documents, reference, stability, limitMilliKelvin, canWrite: UPLOAD_ROLES.includes(user.role), mayCalibrate: (['engineer', 'supervisor', 'admin'] as string[]).includes(user.role), nowUtcMinute: new Date().toISOString().slice(0, 16) };
 }) satisfies PageServerLoad;
 
 export const actions = {
