@@ -2,10 +2,12 @@
 // baseline measured in the same run on this machine. `npm run bench -- plateau` runs one of them.
 import { runIngestBench } from './bench/ingest';
 import { runPlateauBench } from './bench/plateau';
+import { runLivePageBench } from './bench/live-page';
 
 const BENCHES: Record<string, () => Promise<string[]>> = {
 	ingest: runIngestBench,
-	plateau: runPlateauBench
+	plateau: runPlateauBench,
+	'live-page': runLivePageBench
 };
 
 const chosen = process.argv.slice(2).filter((a) => !a.startsWith('-'));

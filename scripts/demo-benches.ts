@@ -62,7 +62,7 @@ export async function startLiveBenches(db: DB, baseUrl: string, technician: Sess
 					operator_id: technician.id,
 					sensor_depth_m: cell.immersion_depth_mm / 1000,
 					gas_pressure_pa: 101_325,
-					settings_json: JSON.stringify({ limits: { driftMilliKelvinPerHour: 0.5, bandMilliKelvin: 2, silenceSeconds: 120 }, demo: { scenario: plan.scenario } }),
+					settings_json: JSON.stringify({ limits: { driftMilliKelvinPerHour: 0.5, bandMilliKelvin: 5, silenceSeconds: 120 }, demo: { scenario: plan.scenario } }),
 					notes: 'Demo: simulated bench'
 				});
 				await transitionRun(db, technician, run.id, 'start');

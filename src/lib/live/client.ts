@@ -3,7 +3,7 @@
 // reconnect, resumes every run from the seq after the last one it delivered, so the caller sees no
 // gap and no repeat. Plain TypeScript (no Svelte) so bench screens can wrap it in a runes class.
 
-import type { BenchSummary, DetectorState, LiveReading, LiveServerMessage, RunInfo } from './protocol';
+import type { AlertSummary, BenchSummary, DetectorState, LiveReading, LiveServerMessage, RunInfo } from './protocol';
 
 export interface RunHandlers {
 	/** Readings in seq order, from history first and then live; `skipped` counts readings left out. */
@@ -23,6 +23,8 @@ export interface LiveClientOptions {
 	baseDelayMs?: number;
 	maxDelayMs?: number;
 	onState?(state: ConnectionState, detail?: string): void;
+	/** an alert was raised, noted or cleared (sent to overview subscribers and those following its run) */
+	onAlert?(alert: AlertSummary): void;
 	/** for tests */
 	WebSocketImpl?: typeof WebSocket;
 	random?: () => number;
@@ -40,6 +42,7 @@ export class LiveClient {
 	private ws: WebSocket | null = null;
 	private readonly runs = new Map<string, RunEntry>();
 	private overview: ((benches: BenchSummary[], full: boolean) => void) | null = null;
+	private overviewEnded: ((runId: string, state: string) => void) | null = null;
 	private attempt = 0;
 	private timer: ReturnType<typeof setTimeout> | null = null;
 	private stopped = false;
@@ -59,12 +62,15 @@ export class LiveClient {
 		};
 	}
 
-	/** Follow every recording bench; `full` is true for the complete list (after each (re)connect). */
-	subscribeOverview(onBenches: (benches: BenchSummary[], full: boolean) => void): () => void {
+	/** Follow every recording bench; `full` is true for the complete list (after each (re)connect).
+	 *  `onRunEnded` (optional) hears when a bench's run stops recording. */
+	subscribeOverview(onBenches: (benches: BenchSummary[], full: boolean) => void, onRunEnded?: (runId: string, state: string) => void): () => void {
 		this.overview = onBenches;
+		this.overviewEnded = onRunEnded ?? null;
 		this.send({ type: 'subscribe-overview' });
 		return () => {
 			this.overview = null;
+			this.overviewEnded = null;
 			this.send({ type: 'unsubscribe-overview' });
 		};
 	}
@@ -146,12 +152,15 @@ export class LiveClient {
 			case 'synced':
 				return this.runs.get(m.runId)?.handlers.onSynced?.(m.throughSeq);
 			case 'run-ended':
+				if (this.overview) this.overviewEnded?.(m.runId, m.state);
 				return this.runs.get(m.runId)?.handlers.onEnded?.(m.state);
 			case 'overview':
 				return this.overview?.(m.benches, m.full);
 			case 'error':
 				if (m.runId) this.runs.get(m.runId)?.handlers.onError?.(m.code, m.message);
 				return;
+			case 'alert':
+				return this.o.onAlert?.(m.alert);
 			case 'hello':
 				return;
 		}

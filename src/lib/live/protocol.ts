@@ -69,6 +69,42 @@ export interface BenchSummary {
 	lastReadingAtMs: number | null;
 }
 
+/**
+ * One alert as screens show it (the inbox, the shell badge, the bench tile, the run page).
+ * Lifecycle (our names): 'raised' — the condition holds and nobody has taken it on; 'noted' — a
+ * supervisor acknowledged it with a comment; 'cleared' — the condition went away (with hysteresis) or
+ * a person closed it. A condition that comes back within the hold-off reopens the same alert.
+ */
+export type AlertState = 'raised' | 'noted' | 'cleared';
+export type AlertKind = 'drift' | 'band' | 'noise' | 'silence' | 'rtpw-shift' | 'early-end';
+
+export interface AlertSummary {
+	id: string;
+	kind: AlertKind;
+	state: AlertState;
+	runId: string | null;
+	benchId: string | null;
+	benchName: string | null;
+	fixedPoint: string | null;
+	message: string;
+	/** the value that fired it and the limit, in `unit` (mK/h, mK, s) */
+	value: number | null;
+	limitValue: number | null;
+	unit: string;
+	raisedAtMs: number;
+	lastSeenAtMs: number;
+	/** how many times the condition (re)appeared within this one alert */
+	occurrences: number;
+	acknowledgedBy: string | null;
+	acknowledgedAtMs: number | null;
+	ackComment: string | null;
+	resolvedAtMs: number | null;
+	resolvedBy: string | null;
+	escalatedAtMs: number | null;
+	/** worst delivery state of its e-mails: none queued, all sent, some waiting to retry, some given up */
+	delivery: 'none' | 'pending' | 'sent' | 'failed';
+}
+
 export type LiveClientMessage =
 	| { type: 'subscribe'; runId: string; fromSeq?: number }
 	| { type: 'unsubscribe'; runId: string }
@@ -92,4 +128,6 @@ export type LiveServerMessage =
 	/** full: the complete list (on subscribing); otherwise only the benches that changed */
 	| { type: 'overview'; benches: BenchSummary[]; full: boolean }
 	| { type: 'run-ended'; runId: string; state: string }
+	/** an alert was raised, reopened, acknowledged or cleared: to overview subscribers and those following its run */
+	| { type: 'alert'; alert: AlertSummary }
 	| { type: 'error'; code: string; message: string; runId?: string };

@@ -26,6 +26,10 @@ export const ACCESS_RULES: readonly { prefix: string; access: Access }[] = [
 	{ prefix: '/compare', access: ['engineer', 'supervisor', 'admin'] },
 	{ prefix: '/calibrations', access: ['engineer', 'supervisor', 'admin'] },
 	{ prefix: '/alerts', access: ['supervisor', 'engineer', 'admin'] },
+	{ prefix: '/alerts/rules', access: ['supervisor', 'admin'] },
+	{ prefix: '/runs/*/review', access: ['supervisor', 'admin'] },
+	{ prefix: '/api/v1/alerts', access: ['supervisor', 'engineer', 'admin'] },
+	{ prefix: '/admin/mail', access: ['admin'] },
 	{ prefix: '/admin', access: ['admin'] },
 	{ prefix: '/api/v1/admin', access: ['admin'] }
 ];

@@ -10,6 +10,7 @@ import { createDownstream, type Downstream } from './downstream';
 import { GROUP_MAX_ROWS, GROUP_WINDOW_MS, LAST_USED_WRITE_INTERVAL_MS, RATE_BURST, RATE_REQUESTS_PER_S } from './limits';
 import { columnsToReadings, type ReducerUpdate } from './reducer';
 import { GroupCommitWriter, type CommittedRun } from './writer';
+import { startAlerts } from '../alerts/runtime';
 
 /** Something holding a socket for a token or run, closed when either stops being valid. */
 export interface IngestConnection {
@@ -93,6 +94,10 @@ export interface IngestService {
 	hub: LiveHub;
 	limiter: RateLimiter;
 	connections: Set<IngestConnection>;
+	/** Called with every reducer update after the hub (the alert engine); must be cheap and not throw. */
+	observers: Set<(u: ReducerUpdate) => void>;
+	/** Run at shutdown (the alert engine's timers and the mail outbox). */
+	closers: (() => void)[];
 	/** Drops runs that stopped recording (finished by a page, a script, another process). */
 	sweep(): void;
 	shutdown(): Promise<void>;
@@ -105,6 +110,7 @@ const SWEEP_MS = 2000;
 export function createIngestService(sqlite: SQLite.Database, dbPath: string, opts: { inlineReducer?: boolean } = {}): IngestService {
 	const hub = new LiveHub();
 	const connections = new Set<IngestConnection>();
+	const observers = new Set<(u: ReducerUpdate) => void>();
 	const runs = new RecordingRuns(sqlite);
 	const ended = new Set<number>();
 	const onUpdate = (u: ReducerUpdate) => {
@@ -113,6 +119,7 @@ export function createIngestService(sqlite: SQLite.Database, dbPath: string, opt
 		// Reading objects are made only for runs somebody watches.
 		if (hub.watching(u.runId)) hub.publishRun(u.runId, u.columns.seq.length > 0 ? columnsToReadings(u.columns, u.problem) : [], u.summary.detector);
 		hub.publishBench(u.summary);
+		for (const o of observers) o(u);
 	};
 	const downstream = createDownstream({ sqlite, dbPath, onUpdate, inline: opts.inlineReducer });
 	const writer = new GroupCommitWriter(sqlite, {
@@ -139,6 +146,8 @@ export function createIngestService(sqlite: SQLite.Database, dbPath: string, opt
 		hub,
 		limiter,
 		connections,
+		observers,
+		closers: [],
 		sweep() {
 			const ids = runs.known();
 			if (ids.length === 0) return;
@@ -155,6 +164,7 @@ export function createIngestService(sqlite: SQLite.Database, dbPath: string, opt
 		},
 		async shutdown() {
 			clearInterval(timer);
+			for (const close of service.closers) close();
 			await writer.close();
 			await downstream.close();
 			hub.close();
@@ -178,6 +188,8 @@ export function ingestService(): IngestService {
 		const { sqlite, path } = appDatabase();
 		const service = createIngestService(sqlite, path);
 		g[KEY] = service;
+		// Alert rules on every reducer update, a tick for silence and escalation, the e-mail outbox.
+		startAlerts(service);
 		// revokeBenchToken (src/lib/server/tokens) calls this to close the token's open streams at once.
 		g[Symbol.for('stillpoint.tokenRevoked')] = (tokenId: number) => {
 			for (const c of service.connections) if (c.tokenId === tokenId) c.close(4401, 'invalid_token', 'This bench token has been revoked.');

@@ -8,7 +8,7 @@
 // dropped whenever the cap is reached) and detector states coalesced (only the newest kept), so one
 // slow browser costs bounded memory and never delays the others.
 
-import type { BenchSummary, DetectorState, LiveReading, LiveServerMessage } from '$lib/live/protocol';
+import type { AlertSummary, BenchSummary, DetectorState, LiveReading, LiveServerMessage } from '$lib/live/protocol';
 
 export interface HubSocket {
 	send(data: string): void;
@@ -138,6 +138,14 @@ export class LiveHub {
 			sub.overviewDirty.delete(runId);
 			this.send(sub, { type: 'run-ended', runId: String(runId), state });
 		}
+	}
+
+	/** An alert changed: to every overview subscriber and to those following its run (rare, small, sent at once). */
+	publishAlert(alert: AlertSummary): void {
+		const message: LiveServerMessage = { type: 'alert', alert };
+		const to = new Set<Subscriber>(this.overview);
+		if (alert.runId !== null) for (const sub of this.byRun.get(Number(alert.runId)) ?? []) to.add(sub);
+		for (const sub of to) this.send(sub, message);
 	}
 
 	/** Keeps every other pending reading (always the newest), so a chart still shows the shape. */

@@ -1,11 +1,14 @@
+import { requireUser } from '$lib/server/auth/guard';
 import { appDatabase } from '$lib/server/db';
-import { listBenches } from '$lib/server/repositories/equipment';
-import { recordingRunsByBench } from '$lib/server/repositories/runs';
+import { benchTiles } from '$lib/server/bench-screens/tiles';
+import { openAlertsByBench } from '$lib/server/bench-screens/alerts';
+import { ingestService } from '$lib/server/ingest/service';
 import type { PageServerLoad } from './$types';
 
-export const load = (async () => {
-	const { db } = appDatabase();
-	const [benches, recording] = await Promise.all([listBenches(db), recordingRunsByBench(db)]);
-	const runByBench = new Map(recording.map((r) => [r.bench_id, r]));
-	return { benches: benches.map((b) => ({ ...b, run: runByBench.get(b.id) ?? null })) };
+export const load = (async ({ locals, depends }) => {
+	requireUser(locals);
+	depends('app:benches');
+	const { db, sqlite } = appDatabase();
+	const [tiles, alerts] = await Promise.all([benchTiles(db, sqlite), openAlertsByBench(db)]);
+	return { tiles, summaries: ingestService().runs.overview(), alerts };
 }) satisfies PageServerLoad;

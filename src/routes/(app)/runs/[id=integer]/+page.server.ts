@@ -3,6 +3,9 @@ import { requireUser } from '$lib/server/auth/guard';
 import { appDatabase } from '$lib/server/db';
 import { RUN_TRANSITIONS, RunLifecycleError, transitionRun, type RunTransition } from '$lib/server/repositories/run-lifecycle';
 import { EVENT_KINDS, addRunEvent, getRunDetail, listRunEvents, runEventSchema, runHistory } from '$lib/server/repositories/run-detail';
+import { loadReductionContext } from '$lib/server/ingest/reduce';
+import { ingestService } from '$lib/server/ingest/service';
+import { alertsForRun } from '$lib/server/bench-screens/alerts';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load = (async ({ params, locals }) => {
@@ -11,11 +14,15 @@ export const load = (async ({ params, locals }) => {
 	const runId = Number(params.id);
 	const run = await getRunDetail(db, runId);
 	if (!run) error(404, { message: `There is no run #${runId}.` });
-	const [events, history] = await Promise.all([listRunEvents(db, runId), runHistory(db, runId)]);
+	const [events, history, alerts] = await Promise.all([listRunEvents(db, runId), runHistory(db, runId), alertsForRun(db, runId)]);
+	// How the readings are reduced, and the expected sensor temperature the chart is drawn against.
+	const ctx = loadReductionContext(appDatabase().sqlite, runId);
+	const reduction = { basis: ctx?.basis ?? 'unavailable', problem: ctx?.problem ?? null, expectedKelvin: ctx?.expectedKelvin ?? null, subrange: ctx?.subrange ?? null };
+	const detector = run.state === 'recording' ? ingestService().runs.detector(runId) : null;
 	const transitions = Object.entries(RUN_TRANSITIONS)
 		.filter(([, t]) => t.from.includes(run.state) && t.roles.includes(user.role) && run.review_state !== 'signed')
 		.map(([name]) => name);
-	return { run, events, history, transitions, eventKinds: EVENT_KINDS, mayAnnotate: run.review_state !== 'signed' };
+	return { run, events, history, transitions, eventKinds: EVENT_KINDS, mayAnnotate: run.review_state !== 'signed', reduction, detector, alerts };
 }) satisfies PageServerLoad;
 
 export const actions = {
