@@ -14,7 +14,7 @@ import {
 } from '../metrology/index';
 import { blockedLine, type BlockedLine } from './blocked';
 import { combineSteps, estimateCurrentStep, type CurrentStep } from './current-step';
-import { locatePlateau } from './locate';
+import { indexAtOrAfter, locatePlateau } from './locate';
 import { prepareSeries, type RunSeries } from './series';
 import { fitLine, finiteOrNull, fitLinearModel } from './stats';
 import { buildBudget, type PlateauBudget } from './budget';
@@ -199,7 +199,7 @@ export function analyseRun(samples: Sample[], options: AnalysisOptions): RunAnal
 		y = zeroCurrent(s, k?.k ?? null);
 	}
 	const duration = end - start;
-	const idx = (time: number) => lowerBound(s.t, time);
+	const idx = (time: number) => indexAtOrAfter(s.t, time);
 	const window = (f0: number, f1: number) => ({ a: start + f0 * duration, b: start + f1 * duration });
 	const minBlockS = Math.max(30, 4 * (s.medianDtS || 1));
 
@@ -333,16 +333,6 @@ export function analyseRun(samples: Sample[], options: AnalysisOptions): RunAnal
 	};
 }
 
-function lowerBound(t: Float64Array, time: number): number {
-	let lo = 0;
-	let hi = t.length;
-	while (lo < hi) {
-		const m = (lo + hi) >> 1;
-		if (t[m] < time) lo = m + 1;
-		else hi = m;
-	}
-	return lo;
-}
 
 /** One step per current change, fitted over 5 min either side (settling excluded). */
 function currentSteps(s: RunSeries, settleS: number, sideS = 300): CurrentStep[] {
@@ -412,7 +402,7 @@ function decimatedFraction(s: RunSeries, y: Float64Array, start: number, end: nu
 	const out: FractionPoint[] = [];
 	const span = end - start;
 	const width = span / CURVE_POINTS;
-	let j = lowerBound(s.t, start);
+	let j = indexAtOrAfter(s.t, start);
 	for (let b = 0; b < CURVE_POINTS; b++) {
 		const hi = start + (b + 1) * width;
 		let c = 0, st = 0, sy = 0;
@@ -442,8 +432,8 @@ function raoultFit(
 	window: [number, number],
 	blockS: number
 ): RaoultFit | null {
-	const a = lowerBound(s.t, start + window[0] * duration);
-	const b = lowerBound(s.t, start + window[1] * duration);
+	const a = indexAtOrAfter(s.t, start + window[0] * duration);
+	const b = indexAtOrAfter(s.t, start + window[1] * duration);
 	const inv: number[] = [];
 	const val: number[] = [];
 	let key = -1;

@@ -84,7 +84,8 @@ export function locatePlateau(t: Float64Array, y: Float64Array, ok: Uint8Array, 
 	return { start, end: endAt ?? t[n - 1], endObserved: endAt !== null, coreStart, coreEnd };
 }
 
-function indexAtOrAfter(t: Float64Array, time: number): number {
+/** The first index whose time is at or after `time` (binary search over ascending times). */
+export function indexAtOrAfter(t: Float64Array, time: number): number {
 	let lo = 0;
 	let hi = t.length;
 	while (lo < hi) {
