@@ -176,3 +176,26 @@ export async function getBenchRun(o: ClientOptions, stop: { aborted: boolean } =
 		throw new RunUnavailableError(res.status, body.code, `GET /api/v1/bench/run: ${res.status} ${body.code}: ${body.message}`);
 	}
 }
+
+/** What both instrument clients hold: the unacknowledged readings, the run, the log, the fatal-error
+ *  promise and the counters. */
+export abstract class BaseIngestClient {
+	protected readonly buffer: UnackedBuffer;
+	protected runId: string | null;
+	protected readonly log: (m: string) => void;
+	protected fail!: (e: Error) => void;
+	readonly failed: Promise<never>;
+	protected readonly s: ClientStats = { sent: 0, acknowledged: 0, duplicates: 0, rejected: 0, retries: 0, reconnects: 0, highestDurableSeq: -1 };
+
+	constructor(protected readonly o: ClientOptions) {
+		this.buffer = new UnackedBuffer(o.bufferCapacity ?? 100_000);
+		this.runId = o.runId ?? null;
+		this.log = o.log ?? (() => {});
+		this.failed = new Promise<never>((_, reject) => (this.fail = reject));
+		this.failed.catch(() => {});
+	}
+
+	stats(): ClientStats {
+		return { ...this.s };
+	}
+}

@@ -3,6 +3,7 @@
 // (Retry-After honoured), never on another 4xx.
 
 import {
+	BaseIngestClient,
 	authHeaders,
 	backoffDelayMs,
 	getBenchRun,
@@ -10,9 +11,7 @@ import {
 	parseRetryAfterMs,
 	raiseFatal,
 	sleep,
-	UnackedBuffer,
 	type ClientOptions,
-	type ClientStats,
 	type IngestClient
 } from './client-common';
 import type { SimReading } from './types';
@@ -22,32 +21,18 @@ interface InvalidDetail {
 	seq?: number;
 }
 
-export class HttpIngestClient implements IngestClient {
-	private readonly buffer: UnackedBuffer;
+export class HttpIngestClient extends BaseIngestClient implements IngestClient {
 	private batchSize: number;
-	private runId: string | null;
 	private closing = false;
 	private stopped = { aborted: false };
 	private downUntilMs = 0;
 	private needResync = false;
 	private wake: (() => void) | null = null;
 	private pumpDone: Promise<void> | null = null;
-	private fail!: (e: Error) => void;
-	readonly failed: Promise<never>;
-	private readonly s: ClientStats = { sent: 0, acknowledged: 0, duplicates: 0, rejected: 0, retries: 0, reconnects: 0, highestDurableSeq: -1 };
-	private readonly log: (m: string) => void;
 
-	constructor(private readonly o: ClientOptions) {
-		this.buffer = new UnackedBuffer(o.bufferCapacity ?? 100_000);
+	constructor(o: ClientOptions) {
+		super(o);
 		this.batchSize = Math.min(o.batchSize ?? 500, 5000);
-		this.runId = o.runId ?? null;
-		this.log = o.log ?? (() => {});
-		this.failed = new Promise<never>((_, reject) => (this.fail = reject));
-		this.failed.catch(() => {});
-	}
-
-	stats(): ClientStats {
-		return { ...this.s };
 	}
 
 	async start(): Promise<{ runId: string; highestDurableSeq: number }> {

@@ -4,6 +4,7 @@
 import WebSocket from 'ws';
 import type { IncomingMessage } from 'node:http';
 import {
+	BaseIngestClient,
 	backoffDelayMs,
 	getBenchRun,
 	isRetryableStatus,
@@ -11,9 +12,7 @@ import {
 	RunUnavailableError,
 	sleep,
 	TokenRefusedError,
-	UnackedBuffer,
 	type ClientOptions,
-	type ClientStats,
 	type IngestClient
 } from './client-common';
 import type { SimReading } from './types';
@@ -27,36 +26,22 @@ type ServerFrame =
 	| { type: 'rejected'; seq: number; errors?: unknown[] }
 	| { type: 'error'; code: string; message: string };
 
-export class WsIngestClient implements IngestClient {
-	private readonly buffer: UnackedBuffer;
+export class WsIngestClient extends BaseIngestClient implements IngestClient {
 	private readonly frameSize: number;
-	private runId: string | null;
 	private ws: WebSocket | null = null;
 	/** How many buffered readings went out on the current connection. */
 	private sentCount = 0;
 	private ready = false;
 	private stopped = false;
 	private downUntilMs = 0;
-	private fail!: (e: Error) => void;
-	readonly failed: Promise<never>;
 	private firstHello: ((h: number) => void) | null = null;
 	private loopDone: Promise<void> | null = null;
 	private silenceTimer: NodeJS.Timeout | null = null;
-	private readonly s: ClientStats = { sent: 0, acknowledged: 0, duplicates: 0, rejected: 0, retries: 0, reconnects: 0, highestDurableSeq: -1 };
-	private readonly log: (m: string) => void;
 	private connectionClosed: (() => void) | null = null;
 
-	constructor(private readonly o: ClientOptions) {
-		this.buffer = new UnackedBuffer(o.bufferCapacity ?? 100_000);
+	constructor(o: ClientOptions) {
+		super(o);
 		this.frameSize = Math.min(o.batchSize ?? 200, 2000); // 2000 × ~100 B stays far below 256 KiB
-		this.runId = o.runId ?? null;
-		this.log = o.log ?? (() => {});
-		this.failed = new Promise<never>((_, reject) => (this.fail = reject));
-		this.failed.catch(() => {});
-	}
-
-	stats(): ClientStats {
-		return { ...this.s };
 	}
 
 	async start(): Promise<{ runId: string; highestDurableSeq: number }> {

@@ -181,3 +181,24 @@ export function guessTimeUnit(sample: string): TimeUnit {
 	if (!NUMBER.test(t)) return 'iso';
 	return Number(t) > 1e11 ? 'epoch-ms' : 'epoch-s';
 }
+
+/** What the server says about one upload (GET /api/v1/uploads/{id}); shared by the server and the page. */
+export interface UploadStatus {
+	id: string;
+	purpose: string;
+	state: string;
+	filename: string;
+	sizeBytes: number;
+	receivedBytes: number;
+	parsedBytes: number;
+	goodRows: number;
+	badRows: number;
+	firstTimeMs: number | null;
+	lastTimeMs: number | null;
+	message: string;
+	runId: number | null;
+	mapping: ColumnMapping | null;
+	problems: { line: number; field: string; reason: string }[];
+	/** Problems beyond those listed (each bad row is counted in badRows). */
+	problemsListed: number;
+}

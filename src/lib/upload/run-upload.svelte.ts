@@ -2,23 +2,9 @@
 // papaparse) → run details → send with progress → server parse with progress → bad rows → confirm.
 import Papa from 'papaparse';
 import { ApiFailure, api, sendFile } from './client';
-import { guessColumns, guessTimeUnit, mappingSchema, validateRow, type ColumnMapping, type RowResult } from './mapping';
+import { guessColumns, guessTimeUnit, mappingSchema, validateRow, type ColumnMapping, type RowResult, type UploadStatus } from './mapping';
 
-export interface ServerStatus {
-	id: string;
-	state: string;
-	sizeBytes: number;
-	receivedBytes: number;
-	parsedBytes: number;
-	goodRows: number;
-	badRows: number;
-	firstTimeMs: number | null;
-	lastTimeMs: number | null;
-	message: string;
-	runId: number | null;
-	problems: { line: number; field: string; reason: string }[];
-	problemsListed: number;
-}
+export type ServerStatus = UploadStatus;
 
 export interface RunDetails {
 	benchId: number | null;

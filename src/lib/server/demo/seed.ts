@@ -1,6 +1,7 @@
 import type { DB } from '../db';
 import type { Auth } from '../auth/better-auth';
 import { provisionUser } from '../auth/provision';
+import { mulberry32 } from '../../../../bench-simulator/src/prng';
 import { seedPastRuns } from './history';
 import { putSetting } from '../repositories/settings';
 import { recordAudit } from '../repositories/audit';
@@ -8,18 +9,6 @@ import { withAluminiumRatio } from '../../metrology/index';
 import { DEMO_BENCHES, DEMO_CELLS, DEMO_LAB_NAME, DEMO_RESISTORS, DEMO_THERMOMETERS, DEMO_USERS } from './scenario';
 
 const DAY_MS = 86_400_000;
-
-/** Deterministic pseudo-random numbers, so the demo looks the same on every machine. */
-function mulberry32(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 
 export interface SeedResult {
 	userIds: Record<string, string>;

@@ -8,7 +8,7 @@ import type { DB } from '../db';
 import type { Run } from '../db/schema';
 import type { SessionUser } from '../auth/types';
 import { recordAudit } from '../repositories/audit';
-import { mappingSchema, type ColumnMapping } from '../../upload/mapping';
+import { mappingSchema, type ColumnMapping, type UploadStatus } from '../../upload/mapping';
 import { MAX_LISTED_PROBLEMS } from '../../upload/limits';
 import { UploadError } from './errors';
 import { isParsing, parseRunLog } from './parse';
@@ -44,25 +44,8 @@ export async function startParse(app: App, actor: SessionUser, id: string, mappi
 	void parseRunLog(app, id, parsed.data).catch((e) => console.error('upload: parse failed', e));
 }
 
-export interface UploadStatus {
-	id: string;
-	purpose: string;
-	state: string;
-	filename: string;
-	sizeBytes: number;
-	receivedBytes: number;
-	parsedBytes: number;
-	goodRows: number;
-	badRows: number;
-	firstTimeMs: number | null;
-	lastTimeMs: number | null;
-	message: string;
-	runId: number | null;
-	mapping: ColumnMapping | null;
-	problems: { line: number; field: string; reason: string }[];
-	/** Problems beyond those listed (each bad row is counted in badRows). */
-	problemsListed: number;
-}
+
+export type { UploadStatus };
 
 export async function uploadStatus(app: App, actor: SessionUser, id: string): Promise<UploadStatus> {
 	let u = await ownUpload(app.db, actor, id);
