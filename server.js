@@ -1,8 +1,10 @@
 // Production server: adapter-node's handler on our own HTTP server, so WebSocket upgrades on /ws/...
-// reach the app's socket hub (registered on globalThis by the app when it starts).
+// reach the app's socket hub, and instrument readings its direct handler (both registered on globalThis
+// by the app when it starts).
 import { createServer } from 'node:http';
 
 const UPGRADE_KEY = Symbol.for('stillpoint.upgrade');
+const DIRECT_KEY = Symbol.for('stillpoint.direct');
 const port = Number(process.env.PORT ?? 3000);
 const host = process.env.HOST ?? '127.0.0.1';
 // SvelteKit's CSRF check and better-auth compare the request's Origin with this; plain HTTP on
@@ -13,7 +15,13 @@ process.env.ORIGIN ??= `http://localhost:${port}`;
 process.env.BODY_SIZE_LIMIT ??= '1M';
 const { handler } = await import('./build/handler.js');
 
-const server = createServer(handler);
+// The instrument's readings endpoint is answered by the app straight from node:http (its one hot path,
+// src/lib/server/ingest/direct.ts); until the app has started, and for everything else, SvelteKit.
+const server = createServer((req, res) => {
+	const direct = globalThis[DIRECT_KEY];
+	if (typeof direct === 'function' && direct(req, res)) return;
+	handler(req, res);
+});
 
 server.on('upgrade', (request, socket, head) => {
 	const upgrade = globalThis[UPGRADE_KEY];

@@ -9,6 +9,7 @@
 // Bounded loops, loopback only; about a minute in all.
 
 import { spawn } from 'node:child_process';
+import { Agent, request as httpRequest } from 'node:http';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -27,6 +28,8 @@ const WS_SECONDS = 8;
 const WS_WINDOW = 400; // unacknowledged single-reading frames per connection
 const LATENCY_RATE_PER_S = 1000;
 const LATENCY_SECONDS = 10;
+/** Rounds of each throughput phase, each with its own baseline (the median round is reported). */
+const ROUNDS = Number(process.env.STILLPOINT_BENCH_ROUNDS ?? 5);
 
 interface ChildConfig {
 	baseUrl: string;
@@ -82,24 +85,42 @@ function reading(seq: number, ratio: number, timeMs = 1_760_000_000_000 + seq * 
 	return { seq, timeMs, ratio: ratio * (1 + ((seq % 11) - 5) * 2e-9), currentMilliAmp: 1, channel: 1 };
 }
 
+/** One POST on a keep-alive connection; node:http, so the load generator's own cost stays small. */
+function post(agent: Agent, url: URL, headers: Record<string, string>, body: Buffer): Promise<{ status: number; text: string }> {
+	return new Promise((resolve, reject) => {
+		const req = httpRequest(url, { method: 'POST', agent, headers: { ...headers, 'content-length': String(body.length) } }, (res) => {
+			const chunks: Buffer[] = [];
+			res.on('data', (c: Buffer) => chunks.push(c));
+			res.on('end', () => resolve({ status: res.statusCode ?? 0, text: Buffer.concat(chunks).toString('utf8') }));
+			res.on('error', reject);
+		});
+		req.on('error', reject);
+		req.end(body);
+	});
+}
+
 async function childHttp(cfg: ChildConfig): Promise<{ rowsPerS: number; rows: number; errors: number }> {
 	const runs = cfg.runs.slice(0, HTTP_CLIENTS);
-	// Bodies are made before the clock starts: the client's own JSON work is not the server's.
-	const bodies = runs.map(() => Array.from({ length: HTTP_BATCHES_PER_CLIENT }, (_, b) => JSON.stringify({ readings: Array.from({ length: HTTP_BATCH }, (_, i) => reading(b * HTTP_BATCH + i, cfg.ratio)) })));
+	// Bodies are made (and encoded) before the clock starts: the client's own JSON work is not the server's.
+	const bodies = runs.map(() => Array.from({ length: HTTP_BATCHES_PER_CLIENT }, (_, b) => Buffer.from(JSON.stringify({ readings: Array.from({ length: HTTP_BATCH }, (_, i) => reading(b * HTTP_BATCH + i, cfg.ratio)) }))));
+	const agent = new Agent({ keepAlive: true, maxSockets: HTTP_CLIENTS });
 	let rows = 0;
 	let errors = 0;
 	const t0 = performance.now();
 	await Promise.all(
 		runs.map(async (run, c) => {
+			const url = new URL(`${cfg.baseUrl}/api/v1/runs/${run.runId}/readings`);
+			const headers = { authorization: `Bearer ${run.token}`, 'content-type': 'application/json' };
 			for (const body of bodies[c]) {
-				const res = await fetch(`${cfg.baseUrl}/api/v1/runs/${run.runId}/readings`, { method: 'POST', headers: { authorization: `Bearer ${run.token}`, 'content-type': 'application/json' }, body });
-				const j = (await res.json()) as { accepted?: number };
-				if (res.ok) rows += j.accepted ?? 0;
+				const res = await post(agent, url, headers, body);
+				const j = JSON.parse(res.text) as { accepted?: number };
+				if (res.status === 200) rows += j.accepted ?? 0;
 				else errors++;
 			}
 		})
 	);
 	const s = (performance.now() - t0) / 1000;
+	agent.destroy();
 	return { rowsPerS: rows / s, rows, errors };
 }
 
@@ -195,12 +216,12 @@ async function childLatency(cfg: ChildConfig): Promise<{ p50: number; p95: numbe
 	return { p50: q(0.5), p95: q(0.95), p99: q(0.99), received: latencies.length, sent };
 }
 
-function runChild<T>(mode: string, cfg: ChildConfig): Promise<T> {
+function runChild<T = { rowsPerS: number; rows: number; errors: number }>(mode: string, cfg: ChildConfig): Promise<T> {
 	const dir = mkdtempSync(join(tmpdir(), 'stillpoint-bench-cfg-'));
 	const file = join(dir, 'config.json');
 	writeFileSync(file, JSON.stringify(cfg));
 	return new Promise((resolve, reject) => {
-		const child = spawn(process.execPath, ['--import', 'tsx', HERE, '--child', mode, file], { stdio: ['ignore', 'pipe', 'inherit'] });
+		const child = spawn(process.execPath, [...(process.env.STILLPOINT_BENCH_CPU_PROF ? ['--cpu-prof', `--cpu-prof-dir=${process.env.STILLPOINT_BENCH_CPU_PROF}`] : []), '--import', 'tsx', HERE, '--child', mode, file], { stdio: ['ignore', 'pipe', 'inherit'] });
 		let out = '';
 		child.stdout.on('data', (d) => (out += d));
 		child.on('exit', (code) => {
@@ -259,23 +280,72 @@ async function prepareRuns(): Promise<{ cfgFor: () => Promise<ChildConfig>; stop
 	};
 }
 
+/** CPU time of the whole machine from /proc/stat: [busy, total] in clock ticks. */
+function cpuTicks(): [number, number] {
+	const f = readFileSync('/proc/stat', 'utf8').split('\n')[0].trim().split(/\s+/).slice(1).map(Number);
+	const idle = f[3] + (f[4] ?? 0);
+	const total = f.reduce((a, b) => a + b, 0);
+	return [total - idle, total];
+}
+
+/**
+ * Waits until the machine is quiet (the server's reducer has caught up with the previous phase, the
+ * last child has exited), so one phase's leftovers do not run inside the next one's clock.
+ */
+async function quiet(maxMs = 20_000): Promise<void> {
+	const end = Date.now() + maxMs;
+	while (Date.now() < end) {
+		const [b0, t0] = cpuTicks();
+		await new Promise((r) => setTimeout(r, 300));
+		const [b1, t1] = cpuTicks();
+		if (t1 > t0 && (b1 - b0) / (t1 - t0) < 0.1) return;
+	}
+}
+
+const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+
 export async function runIngestBench(): Promise<string[]> {
 	const lines: string[] = [];
 	const say = (l: string) => {
 		lines.push(l);
 		console.log(l);
 	};
-	const txBaseline = baselineTransactions();
-	say(line('baseline raw prepared inserts, 1 000-row transactions', txBaseline, 'rows/s', null));
-	const autoBaseline = baselineAutocommit();
-	say(line('baseline raw autocommit inserts', autoBaseline, 'rows/s', null));
 	const env = await prepareRuns();
 	try {
-		const http = await runChild<{ rowsPerS: number; rows: number; errors: number }>('http', await env.cfgFor());
-		say(line(`http batch ingest (${HTTP_CLIENTS} clients, ${HTTP_BATCH}/request)`, http.rowsPerS, 'rows/s', http.rowsPerS / txBaseline, `target >= 0.4; ${http.rows} rows, ${http.errors} errors`));
-		const ws = await runChild<{ rowsPerS: number; rows: number }>('ws', await env.cfgFor());
-		say(line(`websocket single-reading streaming (${WS_CONNECTIONS} connections)`, ws.rowsPerS, 'rows/s', ws.rowsPerS / autoBaseline, `target >= 1; ${ws.rows} rows acknowledged`));
-		const lat = await runChild<{ p50: number; p95: number; p99: number; received: number; sent: number }>('latency', await env.cfgFor());
+		// This machine's speed drifts by a factor of two within minutes (shared cores), so each ratio is
+		// taken in rounds: the baseline right before the phase it divides, and the median round reported.
+		const tx: number[] = [];
+		const http: { rowsPerS: number; rows: number; errors: number }[] = [];
+		for (let round = 0; round < ROUNDS; round++) {
+			const cfg = await env.cfgFor();
+			await quiet();
+			const before = baselineTransactions();
+			http.push(await runChild('http', cfg));
+			// the mean of the baselines just before and just after the phase, to follow the machine's drift
+			tx.push((before + baselineTransactions()) / 2);
+		}
+		const httpRatios = http.map((h, i) => h.rowsPerS / tx[i]);
+		const mid = httpRatios.indexOf(median(httpRatios));
+		say(line('baseline raw prepared inserts, 1 000-row transactions', tx[mid], 'rows/s', null, `(median round; rounds: ${tx.map((x) => Math.round(x / 1000)).join(', ')} k)`));
+		say(
+			line(`http batch ingest (${HTTP_CLIENTS} clients, ${HTTP_BATCH}/request)`, http[mid].rowsPerS, 'rows/s', httpRatios[mid], `target >= 0.4; median of ${ROUNDS} rounds (${httpRatios.map((r) => r.toFixed(2)).join(', ')}); ${http[mid].rows} rows, ${http.reduce((a, h) => a + h.errors, 0)} errors`)
+		);
+		const auto: number[] = [];
+		const ws: { rowsPerS: number; rows: number }[] = [];
+		for (let round = 0; round < ROUNDS; round++) {
+			const cfg = await env.cfgFor();
+			await quiet();
+			const before = baselineAutocommit();
+			ws.push(await runChild('ws', cfg));
+			auto.push((before + baselineAutocommit()) / 2);
+		}
+		const wsRatios = ws.map((w, i) => w.rowsPerS / auto[i]);
+		const wmid = wsRatios.indexOf(median(wsRatios));
+		say(line('baseline raw autocommit inserts', auto[wmid], 'rows/s', null, `(median round; rounds: ${auto.map((x) => Math.round(x / 1000)).join(', ')} k)`));
+		say(line(`websocket single-reading streaming (${WS_CONNECTIONS} connections)`, ws[wmid].rowsPerS, 'rows/s', wsRatios[wmid], `target >= 1; median of ${ROUNDS} rounds (${wsRatios.map((r) => r.toFixed(2)).join(', ')}); ${ws[wmid].rows} rows acknowledged`));
+		const latCfg = await env.cfgFor();
+		await quiet();
+		const lat = await runChild<{ p50: number; p95: number; p99: number; received: number; sent: number }>('latency', latCfg);
 		const note = `(${lat.received}/${lat.sent} readings seen by the subscriber)`;
 		say(line(`live latency p50 at ${LATENCY_RATE_PER_S}/s over ${BENCHES} benches`, lat.p50, 'ms', lat.p50 / 50, note));
 		say(line(`live latency p95 at ${LATENCY_RATE_PER_S}/s over ${BENCHES} benches`, lat.p95, 'ms', lat.p95 / 50, note));

@@ -57,7 +57,7 @@ export async function startTestServer(opts: { dbPath?: string; env?: Record<stri
 	const baseUrl = `http://localhost:${port}`;
 	let log = '';
 	const launch = async () => {
-		const child = spawn(process.execPath, ['server.js'], {
+		const child = spawn(process.execPath, [...(process.env.STILLPOINT_BENCH_CPU_PROF ? ['--cpu-prof', `--cpu-prof-dir=${process.env.STILLPOINT_BENCH_CPU_PROF}`] : []), 'server.js'], {
 			cwd: ROOT,
 			env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', ORIGIN: baseUrl, STILLPOINT_DB: dbPath, STILLPOINT_SECRET: TEST_SECRET, ...opts.env },
 			stdio: ['ignore', 'pipe', 'pipe']

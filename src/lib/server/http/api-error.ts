@@ -5,7 +5,10 @@ export interface ApiErrorBody {
 	error: { code: string; message: string; details?: unknown };
 }
 
+export function apiErrorBody(code: string, message: string, details?: unknown): ApiErrorBody {
+	return { error: details === undefined ? { code, message } : { code, message, details } };
+}
+
 export function apiError(status: number, code: string, message: string, details?: unknown, headers?: HeadersInit): Response {
-	const body: ApiErrorBody = { error: details === undefined ? { code, message } : { code, message, details } };
-	return json(body, { status, headers });
+	return json(apiErrorBody(code, message, details), { status, headers });
 }

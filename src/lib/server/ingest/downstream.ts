@@ -10,13 +10,14 @@ import SQLite from 'better-sqlite3';
 import { Reducer, type ReducerUpdate } from './reducer';
 
 export interface Downstream {
-	notify(runId: number): void;
+	/** New readings for the run; `rows`: what the commit stored, packed (packRows), ownership passes on. */
+	notify(runId: number, rows?: Float64Array): void;
 	drop(runId: number): void;
 	close(): Promise<void>;
 	readonly mode: 'worker' | 'inline';
 }
 
-type ToWorker = { type: 'notify'; runId: number } | { type: 'drop'; runId: number };
+type ToWorker = { type: 'notify'; runId: number; rows?: Float64Array } | { type: 'drop'; runId: number };
 const WORKER_FLAG = 'stillpoint-reducer';
 
 function transferables(u: ReducerUpdate): ArrayBuffer[] {
@@ -29,7 +30,7 @@ export function createDownstream(opts: { sqlite: SQLite.Database; dbPath: string
 	if (!canWorker) {
 		const reducer = new Reducer(opts.sqlite, opts.onUpdate);
 		reducer.loadRecording();
-		return { mode: 'inline', notify: (id) => reducer.notify(id), drop: (id) => reducer.drop(id), close: async () => {} };
+		return { mode: 'inline', notify: (id, rows) => reducer.notify(id, rows), drop: (id) => reducer.drop(id), close: async () => {} };
 	}
 	let worker: Worker | null = null;
 	let closing = false;
@@ -49,10 +50,10 @@ export function createDownstream(opts: { sqlite: SQLite.Database; dbPath: string
 		return w;
 	};
 	worker = start();
-	const post = (m: ToWorker) => worker?.postMessage(m);
+	const post = (m: ToWorker) => worker?.postMessage(m, m.type === 'notify' && m.rows ? [m.rows.buffer as ArrayBuffer] : []);
 	return {
 		mode: 'worker',
-		notify: (runId) => post({ type: 'notify', runId }),
+		notify: (runId, rows) => post({ type: 'notify', runId, rows }),
 		drop: (runId) => post({ type: 'drop', runId }),
 		async close() {
 			closing = true;
@@ -68,6 +69,6 @@ if (!isMainThread && (workerData as { flag?: string } | null)?.flag === WORKER_F
 	// This connection only reads: it must never take the write lock from the ingest.
 	sqlite.pragma('query_only = ON');
 	const reducer = new Reducer(sqlite, (u) => port.postMessage(u, transferables(u)));
-	port.on('message', (m: ToWorker) => (m.type === 'notify' ? reducer.notify(m.runId) : reducer.drop(m.runId)));
+	port.on('message', (m: ToWorker) => (m.type === 'notify' ? reducer.notify(m.runId, m.rows) : reducer.drop(m.runId)));
 	reducer.loadRecording();
 }

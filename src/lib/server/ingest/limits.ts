@@ -15,7 +15,7 @@ export const WS_MAX_PAYLOAD_BYTES = 256 * 1024;
 export const RATE_REQUESTS_PER_S = envNumber('STILLPOINT_INGEST_RATE_PER_S', 20);
 export const RATE_BURST = envNumber('STILLPOINT_INGEST_RATE_BURST', 40);
 /** Group commit: a group closes this long after its first reading arrived, or at this many rows. */
-export const GROUP_WINDOW_MS = 4;
+export const GROUP_WINDOW_MS = 1;
 export const GROUP_MAX_ROWS = 4000;
 /** Past this many readings waiting for the writer, HTTP answers 503 + Retry-After and sockets pause. */
 export const WRITER_QUEUE_MAX_ROWS = 200_000;

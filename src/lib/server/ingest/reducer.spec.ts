@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { columnsToReadings, Reducer, REDUCER_CHUNK, type ReducerUpdate } from './reducer';
+import { columnsToReadings, handoffAfter, packRows, PACKED_STRIDE, Reducer, REDUCER_CHUNK, type ReducerUpdate } from './reducer';
 import { ingestTestDb } from './test-db';
 
 const waitFor = async (pred: () => boolean, ms = 5000) => {
@@ -48,5 +48,60 @@ describe('Reducer (reduction + plateau tracker, fed from storage)', () => {
 		expect(updates.map((u) => u.runId)).toEqual([runId]);
 		expect(Array.from(updates[0].columns.seq)).toEqual([0, 1]);
 		expect(updates[0].columns.t90Kelvin[0]).toBeGreaterThan(302);
+	});
+
+	it('takes a caught-up run\'s new rows from the hand-over, and reads storage while it is not caught up', async () => {
+		const { sqlite, runId } = await ingestTestDb();
+		const updates: ReducerUpdate[] = [];
+		const reducer = new Reducer(sqlite, (u) => updates.push(u));
+		const row = (seq: number) => ({ seq, timeMs: 1_000_000 + seq * 1000, ratio: 1.14265, currentMilliAmp: 1, channel: 1 });
+		const ins = sqlite.prepare('insert into reading values (?, ?, ?, ?, 1, 1)');
+		for (const r of [row(0), row(1)]) ins.run(runId, r.seq, r.timeMs, r.ratio);
+		// Not caught up yet (never read): the hand-over is not trusted, storage is read.
+		reducer.notify(runId, packRows([row(0), row(1), row(7)]));
+		await waitFor(() => updates.length === 1);
+		expect(Array.from(updates[0].columns.seq)).toEqual([0, 1]);
+		// Caught up: rows come from the hand-over. Seq 5 is handed over but not in storage, which shows
+		// that the stage did not read it back.
+		reducer.notify(runId, packRows([row(2), row(5)]));
+		await waitFor(() => updates.length === 2);
+		expect(Array.from(updates[1].columns.seq)).toEqual([2, 5]);
+		expect(updates[1].columns.t90Kelvin[1]).toBeGreaterThan(302);
+	});
+
+	it('hand-over: only seqs above the cursor, in seq order, at most the chunk, the rest kept', () => {
+		const pack = (seqs: number[]) => packRows(seqs.map((seq) => ({ seq, timeMs: seq * 10, ratio: 1 + seq, currentMilliAmp: 1, channel: 2 })));
+		const seqs = (a: Float64Array | null) => (a ? Array.from({ length: a.length / PACKED_STRIDE }, (_, i) => a[i * PACKED_STRIDE]) : null);
+		const inOrder = handoffAfter([pack([3, 4]), pack([5, 6])], 2, 100);
+		expect(seqs(inOrder.rows)).toEqual([3, 4, 5, 6]);
+		expect(inOrder.rest).toBeNull();
+		const mixed = handoffAfter([pack([3, 9, 4]), pack([2, 8, 1])], 2, 3);
+		expect(seqs(mixed.rows)).toEqual([3, 4, 8]);
+		expect(seqs(mixed.rest)).toEqual([9]);
+		// every field travels with its seq
+		expect(Array.from(mixed.rows.subarray(PACKED_STRIDE, 2 * PACKED_STRIDE))).toEqual([4, 40, 5, 1, 2]);
+	});
+
+	it('reduces every stored reading exactly once, in seq order, whatever mix of hand-over and storage it meets', async () => {
+		const { sqlite, runId } = await ingestTestDb();
+		const updates: ReducerUpdate[] = [];
+		const reducer = new Reducer(sqlite, (u) => updates.push(u));
+		const ins = sqlite.prepare('insert or ignore into reading values (?, ?, ?, ?, 1, 1)');
+		let seed = 7;
+		const rand = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+		let next = 0;
+		for (let batch = 0; batch < 60; batch++) {
+			const n = 1 + Math.floor(rand() * (batch % 10 === 0 ? 3000 : 40));
+			const rows = Array.from({ length: n }, (_, i) => ({ seq: next + i, timeMs: 1_000_000 + (next + i) * 1000, ratio: 1.14265, currentMilliAmp: 1, channel: 1 }));
+			next += n;
+			sqlite.transaction(() => rows.forEach((r) => ins.run(runId, r.seq, r.timeMs, r.ratio)))();
+			sqlite.prepare('update run set highest_seq = ?, reading_count = ? where id = ?').run(next - 1, next, runId);
+			reducer.notify(runId, packRows(rows));
+			if (rand() < 0.3) await new Promise((r) => setTimeout(r, 1));
+		}
+		await waitFor(() => updates.reduce((s, u) => s + u.columns.seq.length, 0) >= next);
+		await new Promise((r) => setTimeout(r, 30));
+		const all = updates.flatMap((u) => Array.from(u.columns.seq));
+		expect(all).toEqual(Array.from({ length: next }, (_, i) => i));
 	});
 });

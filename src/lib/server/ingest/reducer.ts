@@ -1,10 +1,13 @@
 // The downstream stage of the ingest: reduction through the metrology core and the plateau tracker,
-// per recording run, fed from storage by a cursor over (run_id, seq).
+// per recording run.
 //
-// Why a tailer of the table rather than a hand-off of the committed rows: the stage can then run in
-// a worker thread on its own connection (the other core), it can fall behind under a burst and catch
-// up without an unbounded queue, and the rebuild after a restart is the same code path as normal
-// operation (the cursor simply starts at -1). Readings are durable before this stage sees them.
+// Its input is storage, read by a cursor over (run_id, seq), with a short cut for the live path: the
+// writer hands over the rows of each commit (packed in a Float64Array, which crosses the thread
+// boundary as memory, not objects), and a run that is caught up takes them from there instead of
+// reading them back. Storage stays the source of truth: a run is rebuilt from it after a restart, and
+// goes back to it whenever the hand-over cannot be trusted to be complete (not yet caught up, too far
+// behind). Either way the stage runs in a worker thread on its own connection (the other core), can
+// fall behind under a burst and catch up, and only ever sees readings that are already durable.
 
 import type SQLite from 'better-sqlite3';
 import { createPlateauTracker, type PlateauTracker, type TrackerSnapshot } from '$lib/plateau';
@@ -22,6 +25,64 @@ export const REDUCER_CHUNK = 2000;
  */
 export const REDUCER_DUTY_CYCLE = 0.35;
 const BACKLOG_BUDGET_MS = 10;
+/**
+ * More new rows than this for one run in one step is not a live bench (a few readings a second) but a
+ * burst or a rebuild: such a run takes its turn under the duty cycle.
+ */
+export const BURST_ROWS = 200;
+/** Handed-over rows kept per run before the hand-over is dropped and the run reads storage again. */
+const HANDOFF_MAX_ROWS = 50_000;
+
+/** Raw readings packed five numbers each: seq, timeMs, ratio, currentMilliAmp, channel. */
+export const PACKED_STRIDE = 5;
+
+export function packRows(rows: readonly { seq: number; timeMs: number; ratio: number; currentMilliAmp: number; channel: number }[]): Float64Array {
+	const out = new Float64Array(rows.length * PACKED_STRIDE);
+	for (let i = 0, o = 0; i < rows.length; i++, o += PACKED_STRIDE) {
+		const r = rows[i];
+		out[o] = r.seq;
+		out[o + 1] = r.timeMs;
+		out[o + 2] = r.ratio;
+		out[o + 3] = r.currentMilliAmp;
+		out[o + 4] = r.channel;
+	}
+	return out;
+}
+
+/** The handed-over rows with seq above afterSeq, in seq order, at most maxRows; the rest stays for later. */
+export function handoffAfter(chunks: readonly Float64Array[], afterSeq: number, maxRows: number): { rows: Float64Array; rest: Float64Array | null } {
+	const S = PACKED_STRIDE;
+	let total = 0;
+	for (const c of chunks) total += c.length;
+	const all = chunks.length === 1 ? chunks[0] : new Float64Array(total);
+	if (chunks.length > 1) {
+		let o = 0;
+		for (const c of chunks) {
+			all.set(c, o);
+			o += c.length;
+		}
+	}
+	const n = total / S;
+	const keep: number[] = [];
+	let sorted = true;
+	for (let i = 0; i < n; i++) {
+		const seq = all[i * S];
+		if (seq <= afterSeq) continue;
+		if (keep.length > 0 && seq <= all[keep[keep.length - 1] * S]) sorted = false;
+		keep.push(i);
+	}
+	// The usual case: one commit after another, every row new and in order.
+	if (sorted && keep.length === n && n <= maxRows) return { rows: all, rest: null };
+	// A resend can bring an older seq after a newer one; the cursor takes them in seq order, as a read would.
+	if (!sorted) keep.sort((a, b) => all[a * S] - all[b * S]);
+	const pick = (from: number, to: number) => {
+		const out = new Float64Array((to - from) * S);
+		for (let k = from; k < to; k++) for (let j = 0; j < S; j++) out[(k - from) * S + j] = all[keep[k] * S + j];
+		return out;
+	};
+	const take = Math.min(keep.length, maxRows);
+	return { rows: pick(0, take), rest: take < keep.length ? pick(take, keep.length) : null };
+}
 
 /** Reduced readings in columns (typed arrays cross a thread boundary as a copy of memory, not objects). */
 export interface ReducedColumns {
@@ -93,14 +154,6 @@ export function columnsToReadings(c: ReducedColumns, problem: string | null): Li
 	return out;
 }
 
-interface RawRow {
-	seq: number;
-	timeMs: number;
-	ratio: number;
-	currentMilliAmp: number;
-	channel: number;
-}
-
 class RunState {
 	ctx: ReductionContext;
 	readonly tracker: PlateauTracker | null;
@@ -113,6 +166,11 @@ class RunState {
 	latest: LiveReading | null = null;
 	readingCount = 0;
 	lastReadingAtMs: number | null = null;
+	/** the cursor reads storage (rebuilding, or the hand-over was dropped) until a read comes back short */
+	fromStorage = true;
+	/** rows the writer handed over since the last step, in commit order */
+	handoff: Float64Array[] = [];
+	handoffRows = 0;
 
 	constructor(ctx: ReductionContext, highestSeq: number) {
 		this.ctx = ctx;
@@ -124,8 +182,9 @@ class RunState {
 		return this.cursorSeq < this.rebuildTargetSeq;
 	}
 
-	step(rows: RawRow[]): { columns: ReducedColumns; problem: string | null } {
-		const n = rows.length;
+	/** Reduces packed rows (seq order, all above the cursor) and feeds the tracker. */
+	step(rows: Float64Array): { columns: ReducedColumns; problem: string | null } {
+		const n = rows.length / PACKED_STRIDE;
 		const c: ReducedColumns = {
 			seq: new Float64Array(n),
 			timeMs: new Float64Array(n),
@@ -141,7 +200,8 @@ class RunState {
 		let problem: string | null = null;
 		let live: LiveReading | null = null;
 		for (let i = 0; i < n; i++) {
-			const r = rows[i];
+			const o = i * PACKED_STRIDE;
+			const r = { seq: rows[o], timeMs: rows[o + 1], ratio: rows[o + 2], currentMilliAmp: rows[o + 3], channel: rows[o + 4] };
 			this.cursorSeq = r.seq;
 			// Same rule as the ingest's answer: earlier than a reading already had → flagged, kept out of the detector.
 			const backwards = r.timeMs < this.maxTimeMs;
@@ -191,19 +251,33 @@ export class Reducer {
 	/** no pump before this time (duty-cycle cap) */
 	private restUntilMs = 0;
 	private restTimer = false;
-	private readonly rowsAfter: SQLite.Statement<[number, number, number], RawRow>;
+	private readonly rowsAfter: SQLite.Statement<[number, number, number], number[]>;
 	private readonly counts: SQLite.Statement<[number], { state: string; highest_seq: number; reading_count: number; last_reading_at: number | null }>;
 
 	constructor(
 		private readonly sqlite: SQLite.Database,
 		private readonly emit: (update: ReducerUpdate) => void
 	) {
-		this.rowsAfter = sqlite.prepare('select seq, time_ms as timeMs, ratio, current_ma as currentMilliAmp, channel from reading where run_id = ? and seq > ? order by seq limit ?');
+		this.rowsAfter = sqlite.prepare<[number, number, number], number[]>('select seq, time_ms, ratio, current_ma, channel from reading where run_id = ? and seq > ? order by seq limit ?').raw(true);
 		this.counts = sqlite.prepare('select state, highest_seq, reading_count, last_reading_at from run where id = ?');
 	}
 
-	/** New readings are stored for the run (or it is recording and should be tracked). */
-	notify(runId: number): void {
+	/**
+	 * New readings are stored for the run (or it is recording and should be tracked). `rows`: what the
+	 * commit stored for it, packed (packRows), kept if the run is caught up and read from storage if not.
+	 */
+	notify(runId: number, rows?: Float64Array): void {
+		const st = rows ? this.runs.get(runId) : undefined;
+		if (st && rows && !st.fromStorage) {
+			if (st.handoffRows + rows.length / PACKED_STRIDE > HANDOFF_MAX_ROWS) {
+				st.handoff = [];
+				st.handoffRows = 0;
+				st.fromStorage = true;
+			} else {
+				st.handoff.push(rows);
+				st.handoffRows += rows.length / PACKED_STRIDE;
+			}
+		}
 		this.dirty.add(runId);
 		this.schedule();
 	}
@@ -271,6 +345,27 @@ export class Reducer {
 		if (this.dirty.size > 0) this.schedule();
 	}
 
+	/** The next rows above the run's cursor: from the hand-over when it is complete, else from storage. */
+	private take(st: RunState, runId: number): Float64Array {
+		if (!st.fromStorage) {
+			const { rows, rest } = handoffAfter(st.handoff, st.cursorSeq, REDUCER_CHUNK);
+			st.handoff = rest ? [rest] : [];
+			st.handoffRows = rest ? rest.length / PACKED_STRIDE : 0;
+			return rows;
+		}
+		const read = this.rowsAfter.all(runId, st.cursorSeq, REDUCER_CHUNK);
+		const rows = new Float64Array(read.length * PACKED_STRIDE);
+		for (let i = 0; i < read.length; i++) rows.set(read[i], i * PACKED_STRIDE);
+		if (read.length < REDUCER_CHUNK) {
+			// Everything stored is in this read, including what any hand-over received so far holds (a
+			// commit is handed over after it happened): from here on the hand-over is complete.
+			st.fromStorage = false;
+			st.handoff = [];
+			st.handoffRows = 0;
+		}
+		return rows;
+	}
+
 	private step(runId: number): void {
 		this.dirty.delete(runId);
 		try {
@@ -279,11 +374,12 @@ export class Reducer {
 				this.backlogged.delete(runId);
 				return;
 			}
-			const rows = this.rowsAfter.all(runId, st.cursorSeq, REDUCER_CHUNK);
-			if (rows.length === REDUCER_CHUNK) {
-				this.backlogged.add(runId);
-				this.dirty.add(runId);
-			} else this.backlogged.delete(runId);
+			const rows = this.take(st, runId);
+			const n = rows.length / PACKED_STRIDE;
+			const more = st.fromStorage ? n === REDUCER_CHUNK : st.handoffRows > 0;
+			if (more) this.dirty.add(runId);
+			if (more || n > BURST_ROWS) this.backlogged.add(runId);
+			else this.backlogged.delete(runId);
 			const counts = this.counts.get(runId);
 			if (counts && counts.state !== 'recording') {
 				this.drop(runId);

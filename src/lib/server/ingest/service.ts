@@ -8,7 +8,7 @@ import { RateLimiter } from '../rate-limit';
 import { LiveHub } from '../live/hub';
 import { createDownstream, type Downstream } from './downstream';
 import { GROUP_MAX_ROWS, GROUP_WINDOW_MS, LAST_USED_WRITE_INTERVAL_MS, RATE_BURST, RATE_REQUESTS_PER_S } from './limits';
-import { columnsToReadings, type ReducerUpdate } from './reducer';
+import { columnsToReadings, packRows, type ReducerUpdate } from './reducer';
 import { GroupCommitWriter, type CommittedRun } from './writer';
 import { startAlerts } from '../alerts/runtime';
 
@@ -129,7 +129,7 @@ export function createIngestService(sqlite: SQLite.Database, dbPath: string, opt
 		onCommit: (committed) => {
 			for (const c of committed) {
 				runs.flag(c);
-				if (c.stored.length > 0) downstream.notify(c.runId);
+				if (c.stored.length > 0) downstream.notify(c.runId, packRows(c.stored));
 			}
 		}
 	});

@@ -106,13 +106,65 @@ describe('GroupCommitWriter', () => {
 		expect(await writer.write(runId, null, range(4, 1))).toMatchObject({ ok: false, code: 'shutting_down' });
 	});
 
-	it('uses synchronous=FULL for its commits and puts NORMAL back afterwards', async () => {
+	it('answers a WAL commit only after the fsync that follows it, one fsync for the groups committed meanwhile', async () => {
+		const t = await ingestTestDb();
+		const syncs: ((e: Error | null) => void)[] = [];
+		const writer = new GroupCommitWriter(t.sqlite, { windowMs: 1, maxRows: 4000, lastUsedIntervalMs: 5000, syncWal: (done) => syncs.push(done) });
+		let answered = 0;
+		const a = writer.write(t.runId, null, range(0, 10)).then((r) => (answered++, r));
+		await new Promise((r) => setTimeout(r, 10));
+		// Committed (a reader sees the rows) but not answered: the fsync has not come back.
+		expect((t.sqlite.prepare('select count(*) as n from reading').get() as { n: number }).n).toBe(10);
+		expect(syncs).toHaveLength(1);
+		expect(answered).toBe(0);
+		// Two more groups commit while that fsync is in flight; they wait for one fsync started after them.
+		const b = writer.write(t.runId, null, range(10, 5)).then((r) => (answered++, r));
+		await new Promise((r) => setTimeout(r, 10));
+		const c = writer.write(t.runId, null, range(15, 5)).then((r) => (answered++, r));
+		await new Promise((r) => setTimeout(r, 10));
+		expect(syncs).toHaveLength(1);
+		syncs[0](null);
+		expect(await a).toMatchObject({ ok: true, accepted: 10 });
+		expect(answered).toBe(1);
+		expect(syncs).toHaveLength(2);
+		syncs[1](null);
+		expect(await Promise.all([b, c])).toMatchObject([{ ok: true, accepted: 5 }, { ok: true, accepted: 5, highestDurableSeq: 19 }]);
+		expect(writer.stats.walSyncs).toBe(2);
+	});
+
+	it('answers storage_error when the fsync fails, and a resend then meets the rows as duplicates', async () => {
+		const t = await ingestTestDb();
+		let fail = true;
+		const writer = new GroupCommitWriter(t.sqlite, { windowMs: 1, maxRows: 4000, lastUsedIntervalMs: 5000, syncWal: (done) => setImmediate(() => done(fail ? new Error('EIO: i/o error, fsync') : null)) });
+		expect(await writer.write(t.runId, null, range(0, 4))).toMatchObject({ ok: false, code: 'storage_error', message: expect.stringContaining('EIO') });
+		fail = false;
+		expect(await writer.write(t.runId, null, range(0, 4))).toMatchObject({ ok: true, accepted: 0, duplicates: 4, highestDurableSeq: 3 });
+	});
+
+	it('fsyncs the real -wal file by default and keeps the connection at synchronous=NORMAL', async () => {
 		const { writer, runId, sqlite } = await setup();
 		const calls: string[] = [];
 		const original = sqlite.pragma.bind(sqlite);
 		sqlite.pragma = ((source: string, options?: { simple?: boolean }) => (calls.push(source), original(source, options))) as typeof sqlite.pragma;
-		await writer.write(runId, null, range(0, 2));
-		expect(calls).toEqual(['synchronous = FULL', 'synchronous = NORMAL']);
+		expect(await writer.write(runId, null, range(0, 2))).toMatchObject({ ok: true, accepted: 2 });
+		expect(writer.stats.walSyncs).toBe(1);
+		expect(calls.filter((c) => c.startsWith('synchronous'))).toEqual([]);
+		expect(original('synchronous', { simple: true })).toBe(1);
+		// The per-row foreign-key lookup is off for the write transaction only (the run is checked in it).
+		expect(calls.filter((c) => c.startsWith('foreign_keys ='))).toEqual(['foreign_keys = OFF', 'foreign_keys = ON']);
+		expect(original('foreign_keys', { simple: true })).toBe(1);
+		await writer.close();
+	});
+
+	it('without a WAL to fsync, commits at synchronous=FULL and puts NORMAL back afterwards', async () => {
+		const t = await ingestTestDb();
+		const writer = new GroupCommitWriter(t.sqlite, { windowMs: 3, maxRows: 4000, lastUsedIntervalMs: 5000, syncWal: null });
+		const calls: string[] = [];
+		const original = t.sqlite.pragma.bind(t.sqlite);
+		t.sqlite.pragma = ((source: string, options?: { simple?: boolean }) => (calls.push(source), original(source, options))) as typeof t.sqlite.pragma;
+		await writer.write(t.runId, null, range(0, 2));
+		expect(calls.filter((c) => c.startsWith('synchronous'))).toEqual(['synchronous = FULL', 'synchronous = NORMAL']);
 		expect(original('synchronous', { simple: true })).toBe(1); // NORMAL for everything else
+		expect(writer.stats.walSyncs).toBe(0);
 	});
 });

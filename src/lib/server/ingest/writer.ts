@@ -2,14 +2,25 @@
 //
 // Submissions (an HTTP batch, a WebSocket frame) queue up; a group closes GROUP_WINDOW_MS after its
 // first submission or at GROUP_MAX_ROWS rows, whichever comes first, and is written in one IMMEDIATE
-// transaction with prepared statements under synchronous=FULL, so the commit is on disk (fsync of the
-// WAL) before any submission in it is answered. A crash therefore loses nothing acknowledged.
+// transaction with prepared statements. No submission is answered before the commit that holds it is on
+// disk, so a crash (of the process, of the machine, of the power) loses nothing acknowledged:
+//
+// - On a WAL database (the product's), the commit itself runs at synchronous=NORMAL, which writes the
+//   WAL frames but does not fsync them, and the writer then fsyncs the WAL file on libuv's thread pool
+//   and answers the group's submissions when that fsync completes. That is the guarantee of
+//   synchronous=FULL (the WAL is synced after each commit) without blocking the event loop for the
+//   fsync; groups committed while one fsync is in flight share the next. A checkpoint that moves frames
+//   into the database file fsyncs it first (SQLite does that at NORMAL), so frames overwritten after a
+//   checkpoint are already durable there.
+// - Otherwise (a rollback-journal or in-memory database: some tests) the commit runs at
+//   synchronous=FULL and is answered at once.
 //
 // It shares the app's sqlite handle (appDatabase().sqlite): the handle is used by Kysely too, and a
 // Kysely transaction may be open across an await. Writing then would put our rows into someone else's
 // transaction, so a group waits (a millisecond at a time) until the handle is outside a transaction.
 // Sharing also means no lock contention inside the process; other processes meet busy_timeout.
 
+import { closeSync, fsync, openSync } from 'node:fs';
 import type SQLite from 'better-sqlite3';
 import type { ValidReading } from './validate';
 
@@ -52,6 +63,11 @@ export interface WriterOptions {
 	now?: () => number;
 	/** Called synchronously after each successful commit, before any submission is answered. */
 	onCommit?: (runs: CommittedRun[]) => void;
+	/**
+	 * Makes the committed WAL durable (default: fsync of the database's -wal file). Tests pass their own
+	 * to observe or fail it; null forces the synchronous=FULL commit even on a WAL database.
+	 */
+	syncWal?: ((done: (error: Error | null) => void) => void) | null;
 }
 
 export interface WriterStats {
@@ -60,6 +76,8 @@ export interface WriterStats {
 	pendingRows: number;
 	lastGroupRows: number;
 	busyRetries: number;
+	/** fsyncs of the WAL (each covers every group committed before it started) */
+	walSyncs: number;
 }
 
 export class GroupCommitWriter {
@@ -81,13 +99,21 @@ export class GroupCommitWriter {
 		touchToken: SQLite.Statement;
 	};
 	private readonly now: () => number;
-	readonly stats: WriterStats = { commits: 0, rows: 0, pendingRows: 0, lastGroupRows: 0, busyRetries: 0 };
+	readonly stats: WriterStats = { commits: 0, rows: 0, pendingRows: 0, lastGroupRows: 0, busyRetries: 0, walSyncs: 0 };
+	private readonly syncWal: ((done: (error: Error | null) => void) => void) | null;
+	private walFd: number | null = null;
+	/** answers of committed groups waiting for an fsync that starts after their commit */
+	private awaitingSync: ((error: Error | null) => void)[] = [];
+	private syncing = false;
+	private syncIdleWaiters: (() => void)[] = [];
 
 	constructor(
 		private readonly sqlite: SQLite.Database,
 		private readonly o: WriterOptions
 	) {
 		this.now = o.now ?? Date.now;
+		const wal = !sqlite.memory && String(sqlite.pragma('journal_mode', { simple: true })).toLowerCase() === 'wal';
+		this.syncWal = o.syncWal === null || !wal ? null : (o.syncWal ?? ((done) => this.fsyncWalFile(done)));
 		this.statements = {
 			// OR IGNORE: the primary key (run_id, seq) turns a repeated seq into "0 changes" = a duplicate.
 			insert: sqlite.prepare('insert or ignore into reading (run_id, seq, time_ms, ratio, current_ma, channel) values (?, ?, ?, ?, ?, ?)'),
@@ -110,7 +136,7 @@ export class GroupCommitWriter {
 		this.queue.push(s);
 		this.queuedRows += s.readings.length;
 		this.stats.pendingRows = this.queuedRows;
-		if (this.queuedRows >= this.o.maxRows) this.flushSoon();
+		if (this.queuedRows >= this.o.maxRows || this.o.windowMs <= 0) this.flushSoon();
 		else if (!this.timer) this.timer = setTimeout(() => this.flush(), this.o.windowMs);
 	}
 
@@ -126,6 +152,38 @@ export class GroupCommitWriter {
 			this.flush();
 			if (this.queue.length > 0) await new Promise((r) => setTimeout(r, 2));
 		}
+		if (this.syncing) await new Promise<void>((r) => this.syncIdleWaiters.push(r));
+		if (this.walFd !== null) closeSync(this.walFd);
+		this.walFd = null;
+	}
+
+	/** The default syncWal: fsync of the -wal file, opened once (its inode lives as long as our connection). */
+	private fsyncWalFile(done: (error: Error | null) => void): void {
+		try {
+			this.walFd ??= openSync(`${this.sqlite.name}-wal`, 'r');
+		} catch (e) {
+			return done(e as Error);
+		}
+		fsync(this.walFd, (e) => done(e));
+	}
+
+	/** Runs answer() once the WAL holding the group just committed is on disk. */
+	private whenDurable(answer: (error: Error | null) => void): void {
+		this.awaitingSync.push(answer);
+		if (!this.syncing) this.startSync();
+	}
+
+	private startSync(): void {
+		const batch = this.awaitingSync;
+		this.awaitingSync = [];
+		this.syncing = true;
+		this.stats.walSyncs++;
+		this.syncWal!((error) => {
+			this.syncing = false;
+			for (const answer of batch) answer(error);
+			if (this.awaitingSync.length > 0) this.startSync();
+			else for (const w of this.syncIdleWaiters.splice(0)) w();
+		});
 	}
 
 	/** Resolves once everything queued so far is committed (or refused). */
@@ -163,12 +221,29 @@ export class GroupCommitWriter {
 		const results: SubmissionResult[] = new Array(group.length);
 		const committed = new Map<number, CommittedRun>();
 		const nowMs = this.now();
-		try {
-			this.sqlite.pragma('synchronous = FULL');
+		// reading.run_id references run(id). The group reads each run's row inside its own IMMEDIATE
+		// transaction and writes only to runs that exist and are recording, so the foreign-key lookup
+		// SQLite would make for every single row proves nothing more; it is switched off for this
+		// transaction only (the pragma takes effect only outside a transaction, hence around it), and
+		// nothing else can run on the handle in between: flush is synchronous.
+		const write = () => {
+			const foreignKeys = this.sqlite.pragma('foreign_keys', { simple: true }) === 1;
+			if (foreignKeys) this.sqlite.pragma('foreign_keys = OFF');
 			try {
 				this.sqlite.transaction(() => this.writeGroup(group, results, committed, nowMs)).immediate();
 			} finally {
-				this.sqlite.pragma('synchronous = NORMAL');
+				if (foreignKeys) this.sqlite.pragma('foreign_keys = ON');
+			}
+		};
+		try {
+			if (this.syncWal) write();
+			else {
+				this.sqlite.pragma('synchronous = FULL');
+				try {
+					write();
+				} finally {
+					this.sqlite.pragma('synchronous = NORMAL');
+				}
 			}
 		} catch (e) {
 			if (e instanceof FastPathMiss) {
@@ -200,9 +275,16 @@ export class GroupCommitWriter {
 				console.error('ingest: post-commit stage failed', e);
 			}
 		}
-		for (let i = 0; i < group.length; i++) group[i].done(results[i]);
+		const answer = (syncError: Error | null) => {
+			// Committed but not known to be on disk: the sender must not drop them. It sends them again and
+			// they come back as duplicates (already stored), which is the truth once the disk recovers.
+			const failed: SubmissionResult | null = syncError && { ok: false, code: 'storage_error', message: `The readings could not be confirmed on disk (${syncError.message}); send them again.` };
+			for (let i = 0; i < group.length; i++) group[i].done(failed && results[i].ok ? failed : results[i]);
+		};
+		if (this.syncWal && committed.size > 0) this.whenDurable(answer);
+		else answer(null);
 		if (this.queue.length > 0) {
-			if (this.queuedRows >= this.o.maxRows) this.flushSoon();
+			if (this.queuedRows >= this.o.maxRows || this.o.windowMs <= 0) this.flushSoon();
 			else this.timer = setTimeout(() => this.flush(), this.o.windowMs);
 		} else if (this.drainWaiters.length > 0) {
 			for (const w of this.drainWaiters.splice(0)) w();

@@ -13,10 +13,12 @@ import { authenticateToken, authorizeRun, bearerToken } from '../ingest/auth';
 import { PING_INTERVAL_MS, PONG_TIMEOUT_MS, WS_MAX_PAYLOAD_BYTES } from '../ingest/limits';
 import { ingestService } from '../ingest/service';
 import { acceptIngestSocket } from '../ingest/socket';
+import { serveReadingsDirect } from '../ingest/direct';
 import { acceptLiveSocket } from './socket';
 
 const UPGRADE_KEY = Symbol.for('stillpoint.upgrade');
 const SHUTDOWN_KEY = Symbol.for('stillpoint.shutdown');
+const DIRECT_KEY = Symbol.for('stillpoint.direct');
 const SOCKETS_KEY = Symbol.for('stillpoint.sockets');
 /** Browsers only send small subscription messages. */
 const LIVE_MAX_PAYLOAD_BYTES = 16 * 1024;
@@ -141,6 +143,8 @@ export function registerSocketHooks(): void {
 	const g = globalThis as Record<symbol, unknown>;
 	g[UPGRADE_KEY] = (req: IncomingMessage, socket: Duplex, head: Buffer) => void handleUpgrade(req, socket, head);
 	g[SHUTDOWN_KEY] = shutdownSockets;
+	// The instrument's readings endpoint, served by server.js before SvelteKit (see ingest/direct.ts).
+	g[DIRECT_KEY] = serveReadingsDirect;
 	// Start the ingest now: recording runs get their detectors rebuilt before the first reading.
 	ingestService();
 }
