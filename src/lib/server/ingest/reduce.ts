@@ -130,33 +130,42 @@ function rTpwAt(ctx: ReductionContext, timeMs: number): number {
 	return ohm;
 }
 
-/** One reading reduced for display and the detector. Never throws: a failure leaves the derived values null. */
-export function reduceForLive(ctx: ReductionContext, r: ValidReading, timeBackwards: boolean): LiveReading {
-	const out: LiveReading = {
-		seq: r.seq,
-		timeMs: r.timeMs,
-		ratio: r.ratio,
-		currentMilliAmp: r.currentMilliAmp,
-		channel: r.channel,
-		resistanceOhm: null,
-		w: null,
-		t90Kelvin: null,
-		deltaMilliKelvin: null
-	};
-	if (timeBackwards) out.timeBackwards = true;
-	if (ctx.basis === 'unavailable') return out;
+/** The derived values of one reading (null where the reduction could not be made). */
+export interface ReducedValues {
+	resistanceOhm: number | null;
+	w: number | null;
+	t90Kelvin: number | null;
+	deltaMilliKelvin: number | null;
+	problem: string | null;
+}
+
+export function emptyReduced(): ReducedValues {
+	return { resistanceOhm: null, w: null, t90Kelvin: null, deltaMilliKelvin: null, problem: null };
+}
+
+/**
+ * Reduces one reading into `out` (reused by the reducer, which meets every reading of every run, so
+ * that it makes no object per reading). Never throws: a failure leaves the values null and says why.
+ */
+export function reduceInto(ctx: ReductionContext, ratio: number, timeMs: number, out: ReducedValues): void {
+	out.resistanceOhm = null;
+	out.w = null;
+	out.t90Kelvin = null;
+	out.deltaMilliKelvin = null;
+	out.problem = null;
+	if (ctx.basis === 'unavailable') return;
 	try {
-		const rTpwOhm = rTpwAt(ctx, r.timeMs);
+		const rTpwOhm = rTpwAt(ctx, timeMs);
 		let subrange = ctx.subrange;
 		let coefficients = ctx.coefficients;
 		if (ctx.basis === 'uncalibrated') {
-			const w = (r.ratio * ctx.resistor.calibratedOhm) / rTpwOhm;
+			const w = (ratio * ctx.resistor.calibratedOhm) / rTpwOhm;
 			subrange = w < 1 ? 'Ar-Hg-TPW' : 'TPW-Sn-Zn-Al-Ag';
 			coefficients = ZERO;
 		}
 		// reduceReading's steps (R = ratio × R_s(t); W = R/R_TPW; T90 from W; minus the expected sensor
 		// temperature), with the expected temperature and its corrections computed once per run.
-		const resistanceOhm = resistanceFromBridgeRatio(r.ratio, ctx.resistor, ctx.resistorTemperatureCelsius);
+		const resistanceOhm = resistanceFromBridgeRatio(ratio, ctx.resistor, ctx.resistorTemperatureCelsius);
 		const w = resistanceOhm / rTpwOhm;
 		const t90Kelvin = temperatureFromRatio(w, subrange!, coefficients!);
 		out.resistanceOhm = resistanceOhm;
@@ -166,5 +175,24 @@ export function reduceForLive(ctx: ReductionContext, r: ValidReading, timeBackwa
 	} catch (e) {
 		out.problem = (e as Error).message;
 	}
+}
+
+/** One reading reduced for display and the detector. Never throws: a failure leaves the derived values null. */
+export function reduceForLive(ctx: ReductionContext, r: ValidReading, timeBackwards: boolean): LiveReading {
+	const v = emptyReduced();
+	reduceInto(ctx, r.ratio, r.timeMs, v);
+	const out: LiveReading = {
+		seq: r.seq,
+		timeMs: r.timeMs,
+		ratio: r.ratio,
+		currentMilliAmp: r.currentMilliAmp,
+		channel: r.channel,
+		resistanceOhm: v.resistanceOhm,
+		w: v.w,
+		t90Kelvin: v.t90Kelvin,
+		deltaMilliKelvin: v.deltaMilliKelvin
+	};
+	if (timeBackwards) out.timeBackwards = true;
+	if (v.problem) out.problem = v.problem;
 	return out;
 }

@@ -67,6 +67,11 @@ describe('Reducer (reduction + plateau tracker, fed from storage)', () => {
 		await waitFor(() => updates.length === 2);
 		expect(Array.from(updates[1].columns.seq)).toEqual([2, 5]);
 		expect(updates[1].columns.t90Kelvin[1]).toBeGreaterThan(302);
+		// A notify without rows (readings stored by another path) sends the cursor back to storage.
+		for (const r of [row(6), row(8)]) ins.run(runId, r.seq, r.timeMs, r.ratio);
+		reducer.notify(runId);
+		await waitFor(() => updates.length === 3);
+		expect(Array.from(updates[2].columns.seq)).toEqual([6, 8]);
 	});
 
 	it('hand-over: only seqs above the cursor, in seq order, at most the chunk, the rest kept', () => {

@@ -12,7 +12,7 @@
 import type SQLite from 'better-sqlite3';
 import { createPlateauTracker, type PlateauTracker, type TrackerSnapshot } from '$lib/plateau';
 import type { BenchSummary, DetectorState, LiveReading } from '$lib/live/protocol';
-import { loadReductionContext, reduceForLive, type ReductionContext } from './reduce';
+import { emptyReduced, loadReductionContext, reduceInto, type ReductionContext } from './reduce';
 
 /** Coefficients or R_TPW may change during a run; the context is read again this often. */
 const CONTEXT_TTL_MS = 60_000;
@@ -171,6 +171,7 @@ class RunState {
 	/** rows the writer handed over since the last step, in commit order */
 	handoff: Float64Array[] = [];
 	handoffRows = 0;
+	private readonly scratch = emptyReduced();
 
 	constructor(ctx: ReductionContext, highestSeq: number) {
 		this.ctx = ctx;
@@ -198,32 +199,43 @@ class RunState {
 			flags: new Uint8Array(n)
 		};
 		let problem: string | null = null;
-		let live: LiveReading | null = null;
+		const v = this.scratch;
 		for (let i = 0; i < n; i++) {
 			const o = i * PACKED_STRIDE;
-			const r = { seq: rows[o], timeMs: rows[o + 1], ratio: rows[o + 2], currentMilliAmp: rows[o + 3], channel: rows[o + 4] };
-			this.cursorSeq = r.seq;
+			const seq = rows[o];
+			const timeMs = rows[o + 1];
+			const ratio = rows[o + 2];
+			const currentMilliAmp = rows[o + 3];
+			this.cursorSeq = seq;
 			// Same rule as the ingest's answer: earlier than a reading already had → flagged, kept out of the detector.
-			const backwards = r.timeMs < this.maxTimeMs;
-			if (!backwards) this.maxTimeMs = r.timeMs;
-			live = reduceForLive(this.ctx, r, backwards);
-			if (!backwards && this.tracker && live.t90Kelvin !== null && r.timeMs > this.trackerLastTimeMs) {
-				this.trackerLastTimeMs = r.timeMs;
-				this.snapshot = this.tracker.push(r.timeMs / 1000, live.t90Kelvin, r.currentMilliAmp);
+			const backwards = timeMs < this.maxTimeMs;
+			if (!backwards) this.maxTimeMs = timeMs;
+			reduceInto(this.ctx, ratio, timeMs, v);
+			if (!backwards && this.tracker && v.t90Kelvin !== null && timeMs > this.trackerLastTimeMs) {
+				this.trackerLastTimeMs = timeMs;
+				this.snapshot = this.tracker.push(timeMs / 1000, v.t90Kelvin, currentMilliAmp);
 			}
-			c.seq[i] = r.seq;
-			c.timeMs[i] = r.timeMs;
-			c.ratio[i] = r.ratio;
-			c.currentMilliAmp[i] = r.currentMilliAmp;
-			c.channel[i] = r.channel;
-			c.resistanceOhm[i] = live.resistanceOhm ?? NaN;
-			c.w[i] = live.w ?? NaN;
-			c.t90Kelvin[i] = live.t90Kelvin ?? NaN;
-			c.deltaMilliKelvin[i] = live.deltaMilliKelvin ?? NaN;
-			c.flags[i] = (backwards ? 1 : 0) | (live.problem ? 2 : 0);
-			if (live.problem) problem = live.problem;
+			c.seq[i] = seq;
+			c.timeMs[i] = timeMs;
+			c.ratio[i] = ratio;
+			c.currentMilliAmp[i] = currentMilliAmp;
+			c.channel[i] = rows[o + 4];
+			c.resistanceOhm[i] = v.resistanceOhm ?? NaN;
+			c.w[i] = v.w ?? NaN;
+			c.t90Kelvin[i] = v.t90Kelvin ?? NaN;
+			c.deltaMilliKelvin[i] = v.deltaMilliKelvin ?? NaN;
+			c.flags[i] = (backwards ? 1 : 0) | (v.problem ? 2 : 0);
+			if (v.problem) problem = v.problem;
 		}
-		if (live) this.latest = live;
+		if (n > 0) {
+			// The newest reading as an object, for the bench summary (one per step, not per reading).
+			const k = n - 1;
+			const num = (x: number) => (Number.isNaN(x) ? null : x);
+			const latest: LiveReading = { seq: c.seq[k], timeMs: c.timeMs[k], ratio: c.ratio[k], currentMilliAmp: c.currentMilliAmp[k], channel: c.channel[k], resistanceOhm: num(c.resistanceOhm[k]), w: num(c.w[k]), t90Kelvin: num(c.t90Kelvin[k]), deltaMilliKelvin: num(c.deltaMilliKelvin[k]) };
+			if (c.flags[k] & 1) latest.timeBackwards = true;
+			if (v.problem) latest.problem = v.problem;
+			this.latest = latest;
+		}
 		return { columns: c, problem };
 	}
 
@@ -267,8 +279,13 @@ export class Reducer {
 	 * commit stored for it, packed (packRows), kept if the run is caught up and read from storage if not.
 	 */
 	notify(runId: number, rows?: Float64Array): void {
-		const st = rows ? this.runs.get(runId) : undefined;
-		if (st && rows && !st.fromStorage) {
+		const st = this.runs.get(runId);
+		if (st && !rows) {
+			// Stored by someone else than the writer (or no rows given): only storage knows what is new.
+			st.fromStorage = true;
+			st.handoff = [];
+			st.handoffRows = 0;
+		} else if (st && rows && !st.fromStorage) {
 			if (st.handoffRows + rows.length / PACKED_STRIDE > HANDOFF_MAX_ROWS) {
 				st.handoff = [];
 				st.handoffRows = 0;

@@ -61,6 +61,8 @@ export function checkReading(raw: unknown, errors: FieldError[]): ValidReading |
 	const known = +(seq !== undefined) + +(timeMs !== undefined) + +(ratio !== undefined) + +(currentMilliAmp !== undefined) + +(r.channel !== undefined) + +(r.type !== undefined);
 	if (keys !== known) for (const key in r) if (!ALLOWED.has(key)) errors.push({ field: key, value: shown(r[key]), reason: 'is not a field of a reading' });
 	if (errors.length > before) return null;
+	// The parsed object itself when it holds exactly the five fields (the usual case; no copy per reading).
+	if (keys === 5 && r.channel !== undefined) return r as unknown as ValidReading;
 	return { seq: seq as number, timeMs: timeMs as number, ratio: ratio as number, currentMilliAmp: currentMilliAmp as number, channel: channel as number };
 }
 
