@@ -12,7 +12,7 @@ export function databasePath(env: Record<string, string | undefined> = process.e
 /**
  * Opens the SQLite file with the pragmas the product relies on:
  * WAL so readers never block the ingest writer, foreign keys on (SQLite leaves them off by default),
- * synchronous=NORMAL by default (ingest raises it to FULL for the commits it acknowledges).
+ * synchronous=NORMAL (the ingest writer fsyncs the WAL itself before it acknowledges readings: ingest/writer.ts).
  */
 export function openSqlite(path: string): SQLite.Database {
 	if (path !== ':memory:') mkdirSync(dirname(path), { recursive: true });
