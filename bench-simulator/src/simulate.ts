@@ -4,7 +4,7 @@
 import { derive, pipeline, validateParams } from './engine';
 import type { ScenarioOverrides, ScenarioParams } from './params';
 import { findScenario, resolveParams, SCENARIOS } from './scenarios';
-import { TruthBuilder } from './truth';
+import { TruthBuilder, type NoiseFreeTrace } from './truth';
 import type { GroundTruth, SimEvent, SimReading } from './types';
 import type { FixedPointId, RealizationKind } from '../../src/lib/metrology/index';
 import type { FaultKind } from './params';
@@ -26,7 +26,7 @@ export function simulate(
 	scenario: string,
 	overrides?: ScenarioOverrides,
 	seed: number = DEFAULT_SEED
-): { readings: SimReading[]; events: SimEvent[]; truth: GroundTruth } {
+): { readings: SimReading[]; events: SimEvent[]; truth: GroundTruth; trace: NoiseFreeTrace } {
 	const p = prepare(scenario, overrides);
 	const d = derive(p);
 	const truth = new TruthBuilder(scenario, seed, p, d);
@@ -37,7 +37,9 @@ export function simulate(
 		if (item.type === 'reading') readings.push(item.reading);
 		else if (item.type === 'event') events.push(item.event);
 	}
-	return { readings, events, truth: truth.finish() };
+	// the trace is handed out beside the truth (not in it): a detector's slope is scored over the
+	// window the detector states, which only the noise-free run itself can answer
+	return { readings, events, truth: truth.finish(), trace: truth.trace() };
 }
 
 export interface SimStream {

@@ -8,14 +8,17 @@ import type { GroundTruth } from './types';
 
 /** Sensor within this of the cell's equilibrium temperature (self-heating aside) = on the plateau. */
 const SETTLED_KELVIN = 1e-4;
+const MS_PER_HOUR = 3.6e6;
 const FRACTION_STEPS = Array.from({ length: 19 }, (_, i) => Math.round((i + 1) * 5) / 100);
 
 class Series {
 	t = new Float64Array(1024);
 	y = new Float64Array(1024);
 	f = new Float64Array(1024);
+	/** 1 where the tick gave a reading, 0 for a silent tick (dropout) */
+	reading = new Uint8Array(1024);
 	n = 0;
-	push(t: number, y: number, f: number) {
+	push(t: number, y: number, f: number, reading: boolean) {
 		if (this.n === this.t.length) {
 			const grow = (a: Float64Array) => {
 				const b = new Float64Array(a.length * 2);
@@ -25,22 +28,49 @@ class Series {
 			this.t = grow(this.t);
 			this.y = grow(this.y);
 			this.f = grow(this.f);
+			const r = new Uint8Array(this.reading.length * 2);
+			r.set(this.reading);
+			this.reading = r;
 		}
 		this.t[this.n] = t;
 		this.y[this.n] = y;
 		this.f[this.n] = f;
+		this.reading[this.n] = reading ? 1 : 0;
 		this.n++;
 	}
 }
 
-function slopePerMs(s: Series, fromMs: number, toMs: number): number | null {
+/** Least-squares slope of the noise-free well temperature over [fromMs, toMs], K/ms (every tick,
+ *  or only the ticks that gave a reading). */
+function slopePerMs(s: Series, fromMs: number, toMs: number, readingsOnly = false): number | null {
+	const use = (i: number) => s.t[i] >= fromMs && s.t[i] <= toMs && (!readingsOnly || s.reading[i] === 1);
 	let n = 0, st = 0, sy = 0;
-	for (let i = 0; i < s.n; i++) if (s.t[i] >= fromMs && s.t[i] <= toMs) { n++; st += s.t[i]; sy += s.y[i]; }
+	for (let i = 0; i < s.n; i++) if (use(i)) { n++; st += s.t[i]; sy += s.y[i]; }
 	if (n < 3) return null;
 	const tm = st / n, ym = sy / n;
 	let sxy = 0, sxx = 0;
-	for (let i = 0; i < s.n; i++) if (s.t[i] >= fromMs && s.t[i] <= toMs) { sxy += (s.t[i] - tm) * (s.y[i] - ym); sxx += (s.t[i] - tm) ** 2; }
+	for (let i = 0; i < s.n; i++) if (use(i)) { sxy += (s.t[i] - tm) * (s.y[i] - ym); sxx += (s.t[i] - tm) ** 2; }
 	return sxx > 0 ? sxy / sxx : null;
+}
+
+/**
+ * The noise-free well temperature of a run, tick by tick. A detector states the window it fitted
+ * its slope over; the plateau curve is not a straight line (Raoult: T ≈ T_pure − c/F), so its true
+ * slope depends on the window, and a detector is scored like against like only over its own window.
+ * Kept beside the GroundTruth rather than in it: GroundTruth is written to JSON by the CLI, and a
+ * trace of every tick would make that file as large as the run.
+ */
+export class NoiseFreeTrace {
+	/** @internal built by TruthBuilder */
+	constructor(private readonly series: Series) {}
+
+	/** Least-squares slope of the noise-free well temperature over the readings (not the silent
+	 *  ticks of a dropout, which a detector never sees) with times in [fromMs, toMs], mK/h; null when
+	 *  fewer than three readings fall in the window. */
+	slopeMilliKelvinPerHour(fromMs: number, toMs: number): number | null {
+		const perMs = slopePerMs(this.series, fromMs, toMs, true);
+		return perMs === null ? null : perMs * MS_PER_HOUR * 1000;
+	}
 }
 
 export class TruthBuilder {
@@ -86,7 +116,7 @@ export class TruthBuilder {
 		const settled = twoPhase && Math.abs(s.elementK - selfHeatingKelvin(this.p.thermometer, s.currentMilliAmp) - s.sensedK) < SETTLED_KELVIN;
 		if (this.plateauStartMs === null && this.plateauEndMs === null && settled) this.plateauStartMs = s.timeMs;
 		if (this.plateauStartMs !== null && this.plateauEndMs === null && !twoPhase) this.plateauEndMs = s.timeMs;
-		this.series.push(s.timeMs, s.wellK, s.liquidFraction);
+		this.series.push(s.timeMs, s.wellK, s.liquidFraction, item.type === 'reading');
 
 		// fraction timeline, interpolated between ticks
 		if (this.prev && (twoPhase || s.liquidFraction === 0 || s.liquidFraction === 1)) {
@@ -98,6 +128,11 @@ export class TruthBuilder {
 			}
 		}
 		this.prev = { timeMs: s.timeMs, f: s.liquidFraction };
+	}
+
+	/** The noise-free trace of the run so far (shares the builder's storage; call after the run). */
+	trace(): NoiseFreeTrace {
+		return new NoiseFreeTrace(this.series);
 	}
 
 	private fractionTime(liquidFraction: number): number | null {
@@ -141,7 +176,7 @@ export class TruthBuilder {
 			pureKelvin: d.pureKelvin,
 			liquidusKelvin: d.pureKelvin - d.liquidusDepressionKelvin,
 			liquidusDepressionMilliKelvin: d.liquidusDepressionKelvin * 1000,
-			trueSlopeMilliKelvinPerHour: perMs === null ? null : perMs * 3.6e9,
+			trueSlopeMilliKelvinPerHour: perMs === null ? null : perMs * MS_PER_HOUR * 1000,
 			slopeWindow,
 			fractionTimeline: this.timeline,
 			selfHeatingMilliKelvinAtLowCurrent: selfHeatingKelvin(p.thermometer, p.lowCurrentMilliAmp) * 1000,

@@ -13,6 +13,7 @@ import {
 	type FixedPointId
 } from '../metrology/index';
 import { blockedLine, type BlockedLine } from './blocked';
+import { fitGaussMarkovNoise, type GaussMarkovNoise } from './noise-model';
 import { combineSteps, estimateCurrentStep, type CurrentStep } from './current-step';
 import { indexAtOrAfter, locatePlateau } from './locate';
 import { prepareSeries, type RunSeries } from './series';
@@ -21,6 +22,9 @@ import { buildBudget, type PlateauBudget } from './budget';
 import type { PlateauKind, PlateauResult, Sample } from './types';
 
 const TO_MK_PER_H = 3.6e6;
+/** stretch of the plateau (fraction) and trend degree of the noise model for short windows */
+const NOISE_MODEL_FRACTION: [number, number] = [0.1, 0.9];
+const NOISE_MODEL_DEGREE = 7;
 
 export interface AnalysisOptions {
 	kind: PlateauKind;
@@ -202,10 +206,22 @@ export function analyseRun(samples: Sample[], options: AnalysisOptions): RunAnal
 	const idx = (time: number) => indexAtOrAfter(s.t, time);
 	const window = (f0: number, f1: number) => ({ a: start + f0 * duration, b: start + f1 * duration });
 	const minBlockS = Math.max(30, 4 * (s.medianDtS || 1));
+	// noise model of the plateau, for windows too short to show slow noise themselves (fitted once,
+	// on demand): 10–90 % leaves out the recovery from recalescence and the knee, where no polynomial
+	// of modest degree follows the curve; over 80 % of a freeze 1/F changes ninefold, so a septic
+	// (a quintic left a misfit there that passed for slow noise)
+	let plateauNoise: GaussMarkovNoise | null | undefined;
+	const noiseModel = () => {
+		if (plateauNoise === undefined) {
+			const nw = window(NOISE_MODEL_FRACTION[0], NOISE_MODEL_FRACTION[1]);
+			plateauNoise = fitGaussMarkovNoise(s.t, y, s.ok, idx(nw.a), idx(nw.b), { degree: NOISE_MODEL_DEGREE, minBlockS: s.medianDtS || 0 });
+		}
+		return plateauNoise;
+	};
 
 	// 3. slope and mean over the stated window
 	const w = window(o.slopeFraction[0], o.slopeFraction[1]);
-	const fit = blockedLine(s.t, y, s.ok, idx(w.a), idx(w.b), minBlockS);
+	const fit = blockedLine(s.t, y, s.ok, idx(w.a), idx(w.b), minBlockS, noiseModel);
 	if (!fit) {
 		notes.push('too few readings in the slope window');
 		return empty;
@@ -215,7 +231,7 @@ export function analyseRun(samples: Sample[], options: AnalysisOptions): RunAnal
 	let meanKelvin = fit.mean;
 	if (k && lowI !== null) {
 		// mean at the lower current over the same window, for the record
-		const raw = blockedLine(s.t, addSelfHeating(y, s, k.k, lowI), s.ok, idx(w.a), idx(w.b), minBlockS);
+		const raw = blockedLine(s.t, addSelfHeating(y, s, k.k, lowI), s.ok, idx(w.a), idx(w.b), minBlockS, noiseModel);
 		selfHeating = {
 			kMilliKelvinPerMilliAmp2: k.k * 1000,
 			kStdErrMilliKelvinPerMilliAmp2: k.u * 1000,
@@ -235,7 +251,8 @@ export function analyseRun(samples: Sample[], options: AnalysisOptions): RunAnal
 		slopeStdErrMilliKelvinPerHour: fit.slopeStdErr * TO_MK_PER_H,
 		slopeWindow: { start: w.a, end: w.b },
 		noiseMilliKelvin: fit.sigma * 1000,
-		selfHeatingMilliKelvin: selfHeating ? selfHeating.atLowCurrentMilliKelvin : null
+		selfHeatingMilliKelvin: selfHeating ? selfHeating.atLowCurrentMilliKelvin : null,
+		slopeUncertaintySource: fit.slopeUncertaintySource
 	};
 
 	// 4. fraction: time-proportional, i.e. the heat flow into (or out of) the cell is taken as constant
@@ -253,7 +270,7 @@ export function analyseRun(samples: Sample[], options: AnalysisOptions): RunAnal
 			[0.2, 0.8]
 		] as const) {
 			const ww = window(f0, f1);
-			const f = blockedLine(s.t, y, s.ok, idx(ww.a), idx(ww.b), minBlockS);
+			const f = blockedLine(s.t, y, s.ok, idx(ww.a), idx(ww.b), minBlockS, noiseModel);
 			if (f)
 				fractionSlopes.push({
 					fractionFrom: f0,

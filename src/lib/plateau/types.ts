@@ -27,6 +27,9 @@ export interface PlateauResult {
 	slopeWindow: { start: number; end: number }; // s: where the slope was fitted
 	noiseMilliKelvin: number; // standard deviation about the plateau trend
 	selfHeatingMilliKelvin: number | null; // at the lower current, when two currents appear
+	/** final analysis only: where the slope uncertainty comes from ('window blocks', or 'plateau noise
+	 *  model' when the window is too short to show slow noise itself) */
+	slopeUncertaintySource?: 'window blocks' | 'plateau noise model';
 }
 
 export interface TrackerSnapshot {
