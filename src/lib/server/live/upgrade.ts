@@ -144,7 +144,8 @@ export function registerSocketHooks(): void {
 	g[UPGRADE_KEY] = (req: IncomingMessage, socket: Duplex, head: Buffer) => void handleUpgrade(req, socket, head);
 	g[SHUTDOWN_KEY] = shutdownSockets;
 	// The instrument's readings endpoint, served by server.js before SvelteKit (see ingest/direct.ts).
-	g[DIRECT_KEY] = serveReadingsDirect;
+	// STILLPOINT_DIRECT_INGEST=off leaves it to the SvelteKit route (a test compares the two).
+	if (process.env.STILLPOINT_DIRECT_INGEST !== 'off') g[DIRECT_KEY] = serveReadingsDirect;
 	// Start the ingest now: recording runs get their detectors rebuilt before the first reading.
 	ingestService();
 }
