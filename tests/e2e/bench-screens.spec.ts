@@ -108,6 +108,11 @@ test('a technician starts an indium freeze, watches it live on the tile and the 
 
 		await bench.done;
 		bench = null;
+		// A page opened after the last reading shows the newest reading at once (from the server), not a dash.
+		const fresh = await context.newPage();
+		await fresh.goto(`/runs/${runId}`);
+		await expect(fresh.getByTestId('figure-latest')).toContainText(/[+-]?\d+\.\d{3} mK/);
+		await fresh.close();
 	} finally {
 		await bench?.stop();
 	}

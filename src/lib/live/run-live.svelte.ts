@@ -26,9 +26,10 @@ export class RunLive {
 
 	constructor(
 		readonly runId: string,
-		initial: { detector: DetectorState | null; lastReceiptMs: number | null }
+		initial: { detector: DetectorState | null; lastReceiptMs: number | null; latest?: LiveReading | null }
 	) {
 		this.detector = initial.detector;
+		this.latest = initial.latest ?? null;
 		this.lastReceiptMs = initial.lastReceiptMs;
 	}
 

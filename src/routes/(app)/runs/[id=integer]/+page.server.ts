@@ -19,10 +19,12 @@ export const load = (async ({ params, locals }) => {
 	const ctx = loadReductionContext(appDatabase().sqlite, runId);
 	const reduction = { basis: ctx?.basis ?? 'unavailable', problem: ctx?.problem ?? null, expectedKelvin: ctx?.expectedKelvin ?? null, subrange: ctx?.subrange ?? null };
 	const detector = run.state === 'recording' ? ingestService().runs.detector(runId) : null;
+	// the newest reduced reading, so the page shows it before the next one arrives live
+	const latest = run.state === 'recording' ? (ingestService().runs.summaries.get(runId)?.latest ?? null) : null;
 	const transitions = Object.entries(RUN_TRANSITIONS)
 		.filter(([, t]) => t.from.includes(run.state) && t.roles.includes(user.role) && run.review_state !== 'signed')
 		.map(([name]) => name);
-	return { run, events, history, transitions, eventKinds: EVENT_KINDS, mayAnnotate: run.review_state !== 'signed', reduction, detector, alerts };
+	return { run, events, history, transitions, eventKinds: EVENT_KINDS, mayAnnotate: run.review_state !== 'signed', reduction, detector, latest, alerts };
 }) satisfies PageServerLoad;
 
 export const actions = {
