@@ -83,11 +83,8 @@ function compute(sqlite: SQLite.Database, runId: number, key: string): StoredRun
 	return { ...base, t0Ms, analysis, wAtPoint, problem: analysis.plateau ? null : 'no plateau found' };
 }
 
-/**
- * The run's analysis, from the cache in run.analysis_json when nothing it depends on has changed,
- * otherwise computed now and cached. Raw readings stay the truth; this is only a cache.
- */
-export function storedRunAnalysis(sqlite: SQLite.Database, runId: number): StoredRunAnalysis | null {
+/** The cached analysis if it is current; 'stale' when it must be computed; null: no such run. */
+export function cachedRunAnalysis(sqlite: SQLite.Database, runId: number): StoredRunAnalysis | 'stale' | null {
 	const key = cacheKey(sqlite, runId);
 	if (!key) return null;
 	const cached = sqlite.prepare('select analysis_json from run where id = ?').get(runId) as { analysis_json: string | null };
@@ -96,11 +93,34 @@ export function storedRunAnalysis(sqlite: SQLite.Database, runId: number): Store
 			const parsed = JSON.parse(cached.analysis_json) as StoredRunAnalysis;
 			if (parsed.key === key) return parsed;
 		} catch {
-			/* recompute below */
+			/* stale */
 		}
 	}
-	const fresh = compute(sqlite, runId, key);
-	if (fresh) sqlite.prepare('update run set analysis_json = ? where id = ?').run(JSON.stringify(fresh), runId);
+	return 'stale';
+}
+
+/** Computes the analysis from storage (no write: a read-only connection in a worker may call it). */
+export function computeRunAnalysis(sqlite: SQLite.Database, runId: number): StoredRunAnalysis | null {
+	const key = cacheKey(sqlite, runId);
+	return key ? compute(sqlite, runId, key) : null;
+}
+
+/** Caches a computed analysis, unless the run has changed since it was computed. */
+export function saveRunAnalysis(sqlite: SQLite.Database, a: StoredRunAnalysis): boolean {
+	if (cacheKey(sqlite, a.runId) !== a.key) return false;
+	sqlite.prepare('update run set analysis_json = ? where id = ?').run(JSON.stringify(a), a.runId);
+	return true;
+}
+
+/**
+ * The run's analysis, from the cache in run.analysis_json when nothing it depends on has changed,
+ * otherwise computed now and cached. Raw readings stay the truth; this is only a cache.
+ */
+export function storedRunAnalysis(sqlite: SQLite.Database, runId: number): StoredRunAnalysis | null {
+	const cached = cachedRunAnalysis(sqlite, runId);
+	if (cached !== 'stale') return cached;
+	const fresh = computeRunAnalysis(sqlite, runId);
+	if (fresh) saveRunAnalysis(sqlite, fresh);
 	return fresh;
 }
 

@@ -11,6 +11,7 @@ import { GROUP_MAX_ROWS, GROUP_WINDOW_MS, LAST_USED_WRITE_INTERVAL_MS, RATE_BURS
 import { columnsToReadings, packRows, type ReducerUpdate } from './reducer';
 import { GroupCommitWriter, type CommittedRun } from './writer';
 import { startAlerts } from '../alerts/runtime';
+import { analyseInBackground } from '../analysis/background';
 
 /** Something holding a socket for a token or run, closed when either stops being valid. */
 export interface IngestConnection {
@@ -159,6 +160,8 @@ export function createIngestService(sqlite: SQLite.Database, dbPath: string, opt
 				ended.add(id);
 				downstream.drop(id);
 				hub.runEnded(id, state);
+				// The final analysis starts now, off the main thread, so the run page finds it ready.
+				if (state === 'finished') void analyseInBackground(sqlite, dbPath, id);
 				for (const c of connections) if (c.runId === id) c.close(4403, 'run_not_recording', `Run ${id} is ${state}, not recording.`);
 			}
 		},
