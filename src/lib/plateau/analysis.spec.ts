@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { fixedPoint } from '../metrology/index';
 import { analyseRun } from './index';
-import { syntheticRun, type SyntheticRun } from './synthetic';
+import { idealKelvin, syntheticRun, type SyntheticRun } from './synthetic';
 
 const currentsEvery = (fromS: number, periodS: number, forS: number, untilS: number): [number, number][] => {
 	const c: [number, number][] = [[0, 1]];
@@ -142,5 +142,41 @@ describe('final analysis: robustness and honesty', () => {
 	it('too little data or garbage gives a null plateau, never a throw', () => {
 		expect(analyseRun([], { kind: 'melt' }).plateau).toBeNull();
 		expect(analyseRun([{ t: 0, kelvin: Number.NaN }], { kind: 'freeze' }).plateau).toBeNull();
+	});
+});
+
+describe('final analysis: onset after the recalescence of a freeze', () => {
+	// The thermometer follows the cell as a first-order lag (Newton's law of cooling; common practice
+	// for an immersed thermometer's response), so after recalescence it creeps up onto the plateau and
+	// is settled once within the band (0.1 mK) of the cell. A short (25-min) freeze with a current
+	// switch 50 s after that moment: the readings at the onset are masked by the switch's settling.
+	const BAND_K = 1e-4;
+	const base: SyntheticRun = {
+		kind: 'freeze',
+		dtS: 1,
+		startS: 1200,
+		durationS: 1500,
+		tailS: 600,
+		reboundS: 60,
+		undercoolKelvin: 0.3,
+		slopeMilliKelvinPerHour: -0.5,
+		sensorTauS: 50,
+		selfHeatingKelvinAt1mA: 0.9e-3
+	};
+	const settledAt = (): number => {
+		const quiet = syntheticRun({ ...base, noiseKelvin: 0, selfHeatingKelvinAt1mA: 0 });
+		const nucleation = base.startS! - base.reboundS!;
+		return quiet.samples.find((s) => s.t > nucleation && Math.abs(s.kelvin - idealKelvin(quiet.run, s.t)) < BAND_K)!.t;
+	};
+
+	it('the onset is where the recovery falls within the band, also when a current switch masks it', () => {
+		const onset = settledAt();
+		expect(onset).toBeGreaterThan(base.startS!); // the sensor settles well after the cell's recovery
+		for (const seed of [1, 2, 3, 4, 5]) {
+			const spec: SyntheticRun = { ...base, noiseKelvin: 25e-6, seed, currents: [[0, 1], [onset + 50, 1.414], [onset + 290, 1], [onset + 1100, 1.414], [onset + 1340, 1]] };
+			const { samples } = syntheticRun(spec);
+			const p = analyseRun(samples, { kind: 'freeze' }).plateau!;
+			expect(Math.abs(p.start - onset) / base.durationS!).toBeLessThan(0.01); // goal: ≤ 1 % of the plateau
+		}
 	});
 });

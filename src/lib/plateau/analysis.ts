@@ -188,7 +188,8 @@ export function analyseRun(samples: Sample[], options: AnalysisOptions): RunAnal
 		detectWindowS: o.detectWindowS,
 		minPlateauS: o.minPlateauS,
 		bandKelvin: o.settledBandKelvin,
-		fastKelvinPerS: o.fastMilliKelvinPerHour / TO_MK_PER_H
+		fastKelvinPerS: o.fastMilliKelvinPerHour / TO_MK_PER_H,
+		switches: s.switches
 	});
 	if (!located) {
 		notes.push('no plateau: the readings never stayed flat for the minimum plateau time');

@@ -16,6 +16,8 @@ export interface LocateOptions {
 	bandKelvin: number;
 	/** rate that marks a disturbance or the departure after the knee (K/s) */
 	fastKelvinPerS: number;
+	/** indices where the measuring current changes (the readings after one are on another scale) */
+	switches?: readonly number[];
 }
 
 export interface Located {
@@ -137,6 +139,11 @@ function refineStart(t: Float64Array, y: Float64Array, ok: Uint8Array, fast: Flo
 		s = t[found];
 		if (Math.abs(moved) < 1 || (moved > 0 && iter > 0)) break;
 	}
+	// Freezes and triple points: the onset from the whole recovery after the disturbance. Not for a
+	// melt: its early plateau itself rises steeply (Raoult, F small), which a relaxation onto a
+	// nearly straight plateau cannot be told apart from; the melt keeps the band rule above.
+	const rec = o.direction === 1 ? null : recoveryOnset(t, y, ok, anchor, s, o.bandKelvin, o.switches ?? []);
+	if (rec !== null) s = rec;
 	if (o.direction === 1) {
 		// Melt after a warm disturbance (inner-melt heater): the sensor cools back onto the rising
 		// melt curve and meets it at its lowest point; the steep early curve (F small) is too bent
@@ -157,6 +164,77 @@ function refineStart(t: Float64Array, y: Float64Array, ok: Uint8Array, fast: Flo
 	}
 	return s;
 }
+
+/**
+ * The onset from the thermometer's recovery onto the plateau. After a disturbance (recalescence,
+ * insertion, an inner-interface rod) the sensor relaxes towards the cell's temperature as a
+ * first-order system (Newton's law of cooling; common practice for the response of an immersed
+ * thermometer), so the readings from the last fast movement to the next current change (or a gap
+ * in the readings, or REF_S past the band rule's start) follow y = a + b·(t − t0) + A·exp(−(t − t0)/τ).
+ * The onset is where the relaxation term has fallen to the band, t0 + τ·ln(|A| / band).
+ *
+ * Why not only the first readings within the band: on the recovery's slow tail the readings cross
+ * the band at a few µK/s, so noise of a few tens of µK moves that crossing by tens of seconds, and
+ * the reference it is measured against is a curve extrapolated back from later readings. When a
+ * current switch follows the onset within a minute or two (a short freeze), the readings at the
+ * onset are masked, the reference is extrapolated across the switch (on the scale of a self-heating
+ * estimate that is itself least certain there), and the start either jumps past the mask or creeps
+ * back down the recovery. The relaxation fit uses every reading of the recovery and needs none at the
+ * onset itself. τ on a log grid (coarse, then fine), the rest by linear least squares; no fit
+ * (τ at the grid's edge, no clear recovery, the onset outside the fitted readings): null, the band
+ * rule stands.
+ */
+function recoveryOnset(t: Float64Array, y: Float64Array, ok: Uint8Array, anchor: number, s: number, band: number, switches: readonly number[]): number | null {
+	if (anchor <= 0) return null; // no disturbance: nothing to recover from
+	const lo = anchor + 1;
+	// end: the first break in usable readings after lo, or REF_S after s
+	let stop = t.length;
+	for (const j of switches) if (j > lo) { stop = j; break; }
+	const rows: number[] = [];
+	for (let k = lo; k < stop && t[k] <= s + REF_S; k++) {
+		if (k > lo && t[k] - t[k - 1] > RECOVERY_BREAK_S) break;
+		if (ok[k]) rows.push(k);
+	}
+	if (rows.length < 20) return null;
+	const t0 = t[rows[0]];
+	const span = t[rows[rows.length - 1]] - t0;
+	if (span < 60) return null;
+	const fitAt = (tau: number) => {
+		const fit = fitLinearModel(rows, (k) => [1, (t[k] - t0) / span, Math.exp(-(t[k] - t0) / tau)], y);
+		if (!fit) return null;
+		let rss = 0;
+		for (const r of fit.residuals) rss += r * r;
+		return { rss, tau, A: fit.coef[2] };
+	};
+	// τ: a coarse log grid, then a fine one about its best point (τ at the grid's edge: no recovery seen)
+	let best: { rss: number; tau: number; A: number } | null = null;
+	let edge = true;
+	const coarse: number[] = [];
+	for (let tau = TAU_MIN_S; tau <= span; tau *= TAU_COARSE) coarse.push(tau);
+	coarse.forEach((tau, j) => {
+		const f = fitAt(tau);
+		if (f && (!best || f.rss < best.rss)) {
+			best = f;
+			edge = j === 0 || j === coarse.length - 1;
+		}
+	});
+	if (!best || edge) return null;
+	const mid = (best as { tau: number }).tau;
+	for (let tau = mid / TAU_COARSE; tau <= mid * TAU_COARSE; tau *= TAU_FINE) {
+		const f = fitAt(tau);
+		if (f && f.rss < (best as { rss: number }).rss) best = f;
+	}
+	const b = best as { rss: number; tau: number; A: number };
+	if (!(Math.abs(b.A) > band)) return null;
+	const onset = t0 + b.tau * Math.log(Math.abs(b.A) / band);
+	if (!(onset > t0 && onset < t[rows[rows.length - 1]])) return null;
+	return onset;
+}
+
+const RECOVERY_BREAK_S = 120;
+const TAU_MIN_S = 2;
+const TAU_COARSE = 1.1;
+const TAU_FINE = 1.005;
 
 const GAP_S = 30;
 const REF_S = 600;

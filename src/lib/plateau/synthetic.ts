@@ -49,6 +49,8 @@ export interface SyntheticRun {
 	currents?: [number, number][];
 	/** gaps [fromS, toS] with no readings */
 	gaps?: [number, number][];
+	/** thermometer time constant (s): the sensor follows the cell as a first-order lag; 0 = none */
+	sensorTauS?: number;
 	seed?: number;
 }
 
@@ -107,6 +109,7 @@ export function syntheticRun(run: SyntheticRun): { samples: Sample[]; truth: Syn
 		selfHeatingKelvinAt1mA: 0,
 		currents: [],
 		gaps: [],
+		sensorTauS: 0,
 		seed: 1,
 		...run
 	};
@@ -115,13 +118,17 @@ export function syntheticRun(run: SyntheticRun): { samples: Sample[]; truth: Syn
 	let e = 0;
 	const tEnd = r.startS + r.durationS + r.tailS;
 	const innovation = Math.sqrt(1 - r.rho * r.rho);
+	let sensed = NaN;
+	const follow = r.sensorTauS > 0 ? 1 - Math.exp(-r.dtS / r.sensorTauS) : 1;
 	for (let t = 0; t <= tEnd; t += r.dtS) {
 		e = r.rho * e + innovation * gaussian(rand);
+		const cell = idealKelvin(r, t);
+		sensed = Number.isNaN(sensed) ? cell : sensed + (cell - sensed) * follow;
 		if (r.gaps.some(([a, b]) => t >= a && t < b)) continue;
 		let current: number | undefined;
 		for (const [from, mA] of r.currents) if (t >= from) current = mA;
 		const i = current ?? 1;
-		let kelvin = idealKelvin(r, t) + r.noiseKelvin * e + r.selfHeatingKelvinAt1mA * i * i;
+		let kelvin = sensed + r.noiseKelvin * e + r.selfHeatingKelvinAt1mA * i * i;
 		if (r.outlierProbability > 0 && rand() < r.outlierProbability) kelvin += (rand() < 0.5 ? -1 : 1) * r.outlierKelvin;
 		samples.push(current === undefined ? { t, kelvin } : { t, kelvin, currentMilliAmp: current });
 	}
