@@ -4,14 +4,19 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 
+# Debian packages the tests need: Chromium for the browser tests, poppler-utils (pdftotext) to read the
+# PDF reports the tests download. Installed here when missing and we may (root with apt-get).
 chromium="${CHROMIUM_PATH:-/usr/bin/chromium}"
-if [ ! -x "$chromium" ]; then
+missing=()
+[ -x "$chromium" ] || missing+=(chromium)
+command -v pdftotext >/dev/null 2>&1 || missing+=(poppler-utils)
+if [ ${#missing[@]} -gt 0 ]; then
 	if [ "$(id -u)" = 0 ] && command -v apt-get >/dev/null 2>&1; then
-		echo "Chromium is missing: installing Debian's chromium package…"
+		echo "Installing Debian packages the tests need: ${missing[*]}…"
 		apt-get update -qq
-		DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium >/dev/null
+		DEBIAN_FRONTEND=noninteractive apt-get install -y -qq "${missing[@]}" >/dev/null
 	else
-		echo "Chromium is missing at $chromium. Install it with: sudo apt-get install -y chromium" >&2
+		echo "Missing Debian packages: ${missing[*]}. Install them with: sudo apt-get install -y ${missing[*]}" >&2
 		echo "(or point CHROMIUM_PATH at a Chromium binary). Stillpoint never downloads a browser." >&2
 		exit 1
 	fi
