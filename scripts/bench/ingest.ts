@@ -216,7 +216,7 @@ async function childLatency(cfg: ChildConfig): Promise<{ p50: number; p95: numbe
 	return { p50: q(0.5), p95: q(0.95), p99: q(0.99), received: latencies.length, sent };
 }
 
-function runChild<T = { rowsPerS: number; rows: number; errors: number }>(mode: string, cfg: ChildConfig): Promise<T> {
+function runChild<T>(mode: string, cfg: ChildConfig): Promise<T> {
 	const dir = mkdtempSync(join(tmpdir(), 'stillpoint-bench-cfg-'));
 	const file = join(dir, 'config.json');
 	writeFileSync(file, JSON.stringify(cfg));
@@ -304,6 +304,32 @@ async function quiet(maxMs = 20_000): Promise<void> {
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
+/**
+ * One throughput phase in ROUNDS rounds. This machine's speed drifts by a factor of two within minutes
+ * (shared cores), so each round divides by its own baseline: the mean of one measured just before and
+ * one just after the phase. The median round is reported, with every round's ratio.
+ */
+async function inRounds(env: { cfgFor: () => Promise<ChildConfig> }, mode: 'http' | 'ws', baseline: () => number) {
+	const rounds: { result: { rowsPerS: number; rows: number; errors?: number }; baseline: number; ratio: number }[] = [];
+	for (let round = 0; round < ROUNDS; round++) {
+		const cfg = await env.cfgFor();
+		await quiet();
+		const before = baseline();
+		const result = await runChild<{ rowsPerS: number; rows: number; errors?: number }>(mode, cfg);
+		const b = (before + baseline()) / 2;
+		rounds.push({ result, baseline: b, ratio: result.rowsPerS / b });
+	}
+	const mid = rounds.find((r) => r.ratio === median(rounds.map((x) => x.ratio)))!;
+	return {
+		median: mid.result,
+		baseline: mid.baseline,
+		ratio: mid.ratio,
+		ratios: rounds.map((r) => r.ratio.toFixed(2)).join(', '),
+		baselines: `${rounds.map((r) => Math.round(r.baseline / 1000)).join(', ')} k`,
+		errors: rounds.reduce((a, r) => a + (r.result.errors ?? 0), 0)
+	};
+}
+
 export async function runIngestBench(): Promise<string[]> {
 	const lines: string[] = [];
 	const say = (l: string) => {
@@ -312,37 +338,12 @@ export async function runIngestBench(): Promise<string[]> {
 	};
 	const env = await prepareRuns();
 	try {
-		// This machine's speed drifts by a factor of two within minutes (shared cores), so each ratio is
-		// taken in rounds: the baseline right before the phase it divides, and the median round reported.
-		const tx: number[] = [];
-		const http: { rowsPerS: number; rows: number; errors: number }[] = [];
-		for (let round = 0; round < ROUNDS; round++) {
-			const cfg = await env.cfgFor();
-			await quiet();
-			const before = baselineTransactions();
-			http.push(await runChild('http', cfg));
-			// the mean of the baselines just before and just after the phase, to follow the machine's drift
-			tx.push((before + baselineTransactions()) / 2);
-		}
-		const httpRatios = http.map((h, i) => h.rowsPerS / tx[i]);
-		const mid = httpRatios.indexOf(median(httpRatios));
-		say(line('baseline raw prepared inserts, 1 000-row transactions', tx[mid], 'rows/s', null, `(median round; rounds: ${tx.map((x) => Math.round(x / 1000)).join(', ')} k)`));
-		say(
-			line(`http batch ingest (${HTTP_CLIENTS} clients, ${HTTP_BATCH}/request)`, http[mid].rowsPerS, 'rows/s', httpRatios[mid], `target >= 0.4; median of ${ROUNDS} rounds (${httpRatios.map((r) => r.toFixed(2)).join(', ')}); ${http[mid].rows} rows, ${http.reduce((a, h) => a + h.errors, 0)} errors`)
-		);
-		const auto: number[] = [];
-		const ws: { rowsPerS: number; rows: number }[] = [];
-		for (let round = 0; round < ROUNDS; round++) {
-			const cfg = await env.cfgFor();
-			await quiet();
-			const before = baselineAutocommit();
-			ws.push(await runChild('ws', cfg));
-			auto.push((before + baselineAutocommit()) / 2);
-		}
-		const wsRatios = ws.map((w, i) => w.rowsPerS / auto[i]);
-		const wmid = wsRatios.indexOf(median(wsRatios));
-		say(line('baseline raw autocommit inserts', auto[wmid], 'rows/s', null, `(median round; rounds: ${auto.map((x) => Math.round(x / 1000)).join(', ')} k)`));
-		say(line(`websocket single-reading streaming (${WS_CONNECTIONS} connections)`, ws[wmid].rowsPerS, 'rows/s', wsRatios[wmid], `target >= 1; median of ${ROUNDS} rounds (${wsRatios.map((r) => r.toFixed(2)).join(', ')}); ${ws[wmid].rows} rows acknowledged`));
+		const http = await inRounds(env, 'http', baselineTransactions);
+		say(line('baseline raw prepared inserts, 1 000-row transactions', http.baseline, 'rows/s', null, `(median round; rounds: ${http.baselines})`));
+		say(line(`http batch ingest (${HTTP_CLIENTS} clients, ${HTTP_BATCH}/request)`, http.median.rowsPerS, 'rows/s', http.ratio, `target >= 0.4; median of ${ROUNDS} rounds (${http.ratios}); ${http.median.rows} rows, ${http.errors} errors`));
+		const ws = await inRounds(env, 'ws', baselineAutocommit);
+		say(line('baseline raw autocommit inserts', ws.baseline, 'rows/s', null, `(median round; rounds: ${ws.baselines})`));
+		say(line(`websocket single-reading streaming (${WS_CONNECTIONS} connections)`, ws.median.rowsPerS, 'rows/s', ws.ratio, `target >= 1; median of ${ROUNDS} rounds (${ws.ratios}); ${ws.median.rows} rows acknowledged`));
 		const latCfg = await env.cfgFor();
 		await quiet();
 		const lat = await runChild<{ p50: number; p95: number; p99: number; received: number; sent: number }>('latency', latCfg);

@@ -2,14 +2,16 @@
 import type { RunAnalysis } from '$lib/plateau/index';
 import type { Budget, Distribution } from '$lib/metrology/index';
 
-/** The analysis endpoint's answer (src/lib/server/analysis/run-analysis.ts StoredRunAnalysis). */
+/** The analysis endpoint's answer (the server's StoredRunAnalysis extends it with its cache key). */
 export interface StoredAnalysisView {
 	runId: number;
 	basis: 'calibrated' | 'uncalibrated' | 'unavailable';
 	subrange: string | null;
+	/** UTC ms of the first reading: `t` in the analysis is seconds after it */
 	t0Ms: number | null;
 	readingCount: number;
 	analysis: RunAnalysis | null;
+	/** the thermometer's own W at the realized point (plateau at zero current, head and pressure removed) */
 	wAtPoint: number | null;
 	problem: string | null;
 }

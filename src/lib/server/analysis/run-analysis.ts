@@ -2,21 +2,16 @@ import type SQLite from 'better-sqlite3';
 import { ratioFromTemperature, referenceRatio } from '../../metrology/index';
 import { analyseRun, type RunAnalysis, type Sample } from '../../plateau/index';
 import { loadReductionContext, reduceForLive, type ReductionContext } from '../ingest/reduce';
+import type { StoredAnalysisView } from '../../components/run/analysis-view';
 
-/** A stored run reduced and analysed: what the run page, review, comparison and calibration read. */
-export interface StoredRunAnalysis {
-	runId: number;
+/**
+ * A stored run reduced and analysed: what the run page, review, comparison and calibration read. The
+ * page's view of it (StoredAnalysisView: what the analysis endpoint sends) plus the cache bookkeeping.
+ */
+export interface StoredRunAnalysis extends StoredAnalysisView {
 	/** what the cache was computed from; a new reading, R_TPW check or calibration changes it */
 	key: string;
 	basis: ReductionContext['basis'];
-	subrange: string | null;
-	/** UTC ms of the first reading: `t` in the analysis is seconds after it */
-	t0Ms: number | null;
-	readingCount: number;
-	analysis: RunAnalysis | null;
-	/** the thermometer's own W at the realized point (plateau at zero current, head and pressure removed) */
-	wAtPoint: number | null;
-	problem: string | null;
 	computedAtMs: number;
 }
 
@@ -52,28 +47,35 @@ export function runSamples(sqlite: SQLite.Database, ctx: ReductionContext): { sa
 	return { samples, t0Ms };
 }
 
-function compute(sqlite: SQLite.Database, runId: number, key: string): StoredRunAnalysis | null {
-	const ctx = loadReductionContext(sqlite, runId);
-	if (!ctx) return null;
-	const run = sqlite.prepare('select run.kind, run.fixed_point, run.sensor_depth_m, run.gas_pressure_pa, run.reading_count, cell.purity_percent from run join cell on cell.id = run.cell_id where run.id = ?').get(runId) as {
-		kind: 'melt' | 'freeze' | 'triple-point';
-		fixed_point: ReductionContext['fixedPoint'];
-		sensor_depth_m: number;
-		gas_pressure_pa: number;
-		reading_count: number;
-		purity_percent: number | null;
-	};
-	const base = { runId, key, basis: ctx.basis, subrange: ctx.subrange, readingCount: run.reading_count, computedAtMs: Date.now() };
-	if (ctx.basis === 'unavailable') return { ...base, t0Ms: null, analysis: null, wAtPoint: null, problem: ctx.problem };
-	const { samples, t0Ms } = runSamples(sqlite, ctx);
-	if (samples.length < 10) return { ...base, t0Ms, analysis: null, wAtPoint: null, problem: 'too few readings to analyse' };
-	const analysis = analyseRun(samples, {
+/** What the final analysis needs to know of a run and its cell, as stored. */
+export interface RunAnalysisFacts {
+	kind: 'melt' | 'freeze' | 'triple-point';
+	fixed_point: ReductionContext['fixedPoint'];
+	sensor_depth_m: number;
+	gas_pressure_pa: number;
+	purity_percent: number | null;
+}
+
+/** The final analysis of reduced samples with the run's own settings (cell depth, gas pressure, purity). */
+export function analyseStoredRun(samples: Sample[], run: RunAnalysisFacts): RunAnalysis {
+	return analyseRun(samples, {
 		kind: run.kind,
 		point: run.fixed_point,
 		depthMetre: run.sensor_depth_m,
 		pressurePa: run.gas_pressure_pa,
 		purityPercent: run.purity_percent ?? undefined
 	});
+}
+
+function compute(sqlite: SQLite.Database, runId: number, key: string): StoredRunAnalysis | null {
+	const ctx = loadReductionContext(sqlite, runId);
+	if (!ctx) return null;
+	const run = sqlite.prepare('select run.kind, run.fixed_point, run.sensor_depth_m, run.gas_pressure_pa, run.reading_count, cell.purity_percent from run join cell on cell.id = run.cell_id where run.id = ?').get(runId) as RunAnalysisFacts & { reading_count: number };
+	const base = { runId, key, basis: ctx.basis, subrange: ctx.subrange, readingCount: run.reading_count, computedAtMs: Date.now() };
+	if (ctx.basis === 'unavailable') return { ...base, t0Ms: null, analysis: null, wAtPoint: null, problem: ctx.problem };
+	const { samples, t0Ms } = runSamples(sqlite, ctx);
+	if (samples.length < 10) return { ...base, t0Ms, analysis: null, wAtPoint: null, problem: 'too few readings to analyse' };
+	const analysis = analyseStoredRun(samples, run);
 	let wAtPoint: number | null = null;
 	if (analysis.result) {
 		const t = analysis.result.t90Kelvin;

@@ -8,8 +8,8 @@
 // on that scale, and W at the point is W_r(T) of its result: the measured W, whatever the coefficients.
 import type SQLite from 'better-sqlite3';
 import { referenceRatio, rTpwNearestInTime, type FixedPointId } from '../../metrology/index';
-import { analyseRun, type PlateauBudget } from '../../plateau/index';
-import { runSamples } from '../analysis/run-analysis';
+import type { PlateauBudget } from '../../plateau/index';
+import { analyseStoredRun, runSamples, type RunAnalysisFacts } from '../analysis/run-analysis';
 import { loadReductionContext, type ReductionContext } from '../ingest/reduce';
 
 export interface MeasuredPoint {
@@ -34,12 +34,7 @@ export interface MeasuredPoint {
 
 export type MeasuredResult = { ok: true; value: MeasuredPoint } | { ok: false; runId: number; problem: string };
 
-interface RunFacts {
-	kind: 'melt' | 'freeze' | 'triple-point';
-	fixed_point: FixedPointId;
-	sensor_depth_m: number;
-	gas_pressure_pa: number;
-	purity_percent: number | null;
+interface RunFacts extends RunAnalysisFacts {
 	reading_count: number;
 	highest_seq: number;
 }
@@ -69,13 +64,7 @@ function compute(sqlite: SQLite.Database, runId: number, run: RunFacts): Measure
 	const raw: ReductionContext = { ...ctx, basis: 'uncalibrated', subrange: null, coefficients: null, problem: null, rTpwSpan: null };
 	const { samples, t0Ms } = runSamples(sqlite, raw);
 	if (samples.length < 20 || t0Ms === null) return { ok: false, runId, problem: 'too few readings to analyse' };
-	const analysis = analyseRun(samples, {
-		kind: run.kind,
-		point: run.fixed_point,
-		depthMetre: run.sensor_depth_m,
-		pressurePa: run.gas_pressure_pa,
-		purityPercent: run.purity_percent ?? undefined
-	});
+	const analysis = analyseStoredRun(samples, run);
 	if (!analysis.result || !analysis.plateau || !analysis.budget) return { ok: false, runId, problem: 'no plateau found' };
 	const w = referenceRatio(analysis.result.t90Kelvin);
 	const plateauMidMs = t0Ms + ((analysis.plateau.start + analysis.plateau.end) / 2) * 1000;

@@ -130,27 +130,30 @@ export function toDetectorState(s: TrackerSnapshot | null, rebuilding: boolean):
 	};
 }
 
+const num = (x: number) => (Number.isNaN(x) ? null : x);
+
+/** Row i of the columns as a reading object. */
+function readingAt(c: ReducedColumns, i: number, problem: string | null): LiveReading {
+	const r: LiveReading = {
+		seq: c.seq[i],
+		timeMs: c.timeMs[i],
+		ratio: c.ratio[i],
+		currentMilliAmp: c.currentMilliAmp[i],
+		channel: c.channel[i],
+		resistanceOhm: num(c.resistanceOhm[i]),
+		w: num(c.w[i]),
+		t90Kelvin: num(c.t90Kelvin[i]),
+		deltaMilliKelvin: num(c.deltaMilliKelvin[i])
+	};
+	if (c.flags[i] & 1) r.timeBackwards = true;
+	if (c.flags[i] & 2 && problem) r.problem = problem;
+	return r;
+}
+
 /** Turns columns back into reading objects (only done for runs someone is watching). */
 export function columnsToReadings(c: ReducedColumns, problem: string | null): LiveReading[] {
-	const n = c.seq.length;
-	const out: LiveReading[] = new Array(n);
-	const num = (x: number) => (Number.isNaN(x) ? null : x);
-	for (let i = 0; i < n; i++) {
-		const r: LiveReading = {
-			seq: c.seq[i],
-			timeMs: c.timeMs[i],
-			ratio: c.ratio[i],
-			currentMilliAmp: c.currentMilliAmp[i],
-			channel: c.channel[i],
-			resistanceOhm: num(c.resistanceOhm[i]),
-			w: num(c.w[i]),
-			t90Kelvin: num(c.t90Kelvin[i]),
-			deltaMilliKelvin: num(c.deltaMilliKelvin[i])
-		};
-		if (c.flags[i] & 1) r.timeBackwards = true;
-		if (c.flags[i] & 2 && problem) r.problem = problem;
-		out[i] = r;
-	}
+	const out: LiveReading[] = new Array(c.seq.length);
+	for (let i = 0; i < out.length; i++) out[i] = readingAt(c, i, problem);
 	return out;
 }
 
@@ -227,15 +230,8 @@ class RunState {
 			c.flags[i] = (backwards ? 1 : 0) | (v.problem ? 2 : 0);
 			if (v.problem) problem = v.problem;
 		}
-		if (n > 0) {
-			// The newest reading as an object, for the bench summary (one per step, not per reading).
-			const k = n - 1;
-			const num = (x: number) => (Number.isNaN(x) ? null : x);
-			const latest: LiveReading = { seq: c.seq[k], timeMs: c.timeMs[k], ratio: c.ratio[k], currentMilliAmp: c.currentMilliAmp[k], channel: c.channel[k], resistanceOhm: num(c.resistanceOhm[k]), w: num(c.w[k]), t90Kelvin: num(c.t90Kelvin[k]), deltaMilliKelvin: num(c.deltaMilliKelvin[k]) };
-			if (c.flags[k] & 1) latest.timeBackwards = true;
-			if (v.problem) latest.problem = v.problem;
-			this.latest = latest;
-		}
+		// The newest reading as an object, for the bench summary (one per step, not per reading).
+		if (n > 0) this.latest = readingAt(c, n - 1, v.problem);
 		return { columns: c, problem };
 	}
 

@@ -53,11 +53,6 @@ export interface CommittedRun {
 
 /** Rows per multi-row INSERT on the fast path (6 parameters each; SQLite allows 32 766). */
 const MULTI_ROWS = 100;
-/**
- * fsyncs of the WAL that may overlap (each answers the groups committed before it started). Overlapping
- * fsyncs measured no faster here (the device takes its flushes one at a time), so one.
- */
-const MAX_SYNCS_IN_FLIGHT = 1;
 
 class FastPathMiss extends Error {}
 
@@ -110,7 +105,8 @@ export class GroupCommitWriter {
 	private walFd: number | null = null;
 	/** answers of committed groups waiting for an fsync that starts after their commit */
 	private awaitingSync: ((error: Error | null) => void)[] = [];
-	private syncing = 0;
+	/** one fsync at a time: overlapping ones measured no faster here (the device takes its flushes in turn) */
+	private syncing = false;
 	private syncIdleWaiters: (() => void)[] = [];
 
 	constructor(
@@ -142,7 +138,7 @@ export class GroupCommitWriter {
 		this.queue.push(s);
 		this.queuedRows += s.readings.length;
 		this.stats.pendingRows = this.queuedRows;
-		if (this.queuedRows >= this.o.maxRows || this.o.windowMs <= 0) this.flushSoon();
+		if (this.queuedRows >= this.o.maxRows) this.flushSoon();
 		else if (!this.timer) this.timer = setTimeout(() => this.flush(), this.o.windowMs);
 	}
 
@@ -158,7 +154,7 @@ export class GroupCommitWriter {
 			this.flush();
 			if (this.queue.length > 0) await new Promise((r) => setTimeout(r, 2));
 		}
-		if (this.syncing > 0) await new Promise<void>((r) => this.syncIdleWaiters.push(r));
+		if (this.syncing) await new Promise<void>((r) => this.syncIdleWaiters.push(r));
 		if (this.walFd !== null) closeSync(this.walFd);
 		this.walFd = null;
 	}
@@ -176,24 +172,25 @@ export class GroupCommitWriter {
 	/** Runs answer() once the WAL holding the group just committed is on disk. */
 	private whenDurable(answer: (error: Error | null) => void): void {
 		this.awaitingSync.push(answer);
-		if (this.syncing < MAX_SYNCS_IN_FLIGHT) this.startSync();
+		if (!this.syncing) this.startSync();
 	}
 
 	private startSync(): void {
 		const batch = this.awaitingSync;
 		this.awaitingSync = [];
-		this.syncing++;
+		this.syncing = true;
 		this.stats.walSyncs++;
 		const t0 = performance.now();
 		this.syncWal!((error) => {
 			this.stats.walSyncMs += performance.now() - t0;
-			this.syncing--;
+			this.syncing = false;
 			for (const answer of batch) answer(error);
 			// What queued up during the fsync is committed now, so that the next fsync covers it too
 			// (rather than waiting for its window and then for one more fsync).
 			if (this.queue.length > 0 && !this.closed) this.flush();
-			if (this.awaitingSync.length > 0 && this.syncing < MAX_SYNCS_IN_FLIGHT) this.startSync();
-			else if (this.syncing === 0) for (const w of this.syncIdleWaiters.splice(0)) w();
+			if (this.awaitingSync.length > 0) {
+				if (!this.syncing) this.startSync();
+			} else if (!this.syncing) for (const w of this.syncIdleWaiters.splice(0)) w();
 		});
 	}
 
@@ -295,7 +292,7 @@ export class GroupCommitWriter {
 		if (this.syncWal && committed.size > 0) this.whenDurable(answer);
 		else answer(null);
 		if (this.queue.length > 0) {
-			if (this.queuedRows >= this.o.maxRows || this.o.windowMs <= 0) this.flushSoon();
+			if (this.queuedRows >= this.o.maxRows) this.flushSoon();
 			else this.timer = setTimeout(() => this.flush(), this.o.windowMs);
 		} else if (this.drainWaiters.length > 0) {
 			for (const w of this.drainWaiters.splice(0)) w();
