@@ -19,6 +19,7 @@ function gaussMarkovRun(seed: number, n: number, dtS: number, whiteK: number, sl
 }
 
 describe('slope variance under a white + Gauss–Markov model', () => {
+	// Var(Σ w_i y_i) = Σ Σ w_i w_j Cov(y_i, y_j): the variance of a linear combination (common practice).
 	it('the one-pass sum equals the double sum Σ Σ w_i w_j Cov(y_i, y_j)', () => {
 		const t = [0, 1, 2.5, 4, 7, 7.5, 11, 12, 15, 20];
 		const m = { whiteVariance: 2, markovVariance: 3, tauS: 4 };
@@ -29,6 +30,8 @@ describe('slope variance under a white + Gauss–Markov model', () => {
 		expect(olsSlopeVariance(t, m)! / v).toBeCloseTo(1, 10);
 	});
 
+	// REML: Patterson & Thompson, Biometrika 58 (1971) 545; no published value is checked here, the truth is
+	// the synthetic record's own τ and σm²/τ.
 	it('REML over a long record finds the correlation time and the ratio σm²/τ', () => {
 		const { t, y } = gaussMarkovRun(3, 14400, 2, 25e-6, 15e-6, 600);
 		const m = fitGaussMarkovNoise(t, y, null, 0, t.length, { degree: 7 })!;
