@@ -1,5 +1,5 @@
 import SQLite from 'better-sqlite3';
-import { Kysely, SqliteDialect } from 'kysely';
+import { CompiledQuery, Kysely, SqliteDialect, SqliteDriver, type DatabaseConnection, type Driver } from 'kysely';
 import { mkdirSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import type { Database } from './schema';
@@ -24,6 +24,29 @@ export function openSqlite(path: string): SQLite.Database {
 	return sqlite;
 }
 
+/**
+ * Kysely's SQLite driver opens transactions with a plain (deferred) BEGIN. In WAL mode a deferred
+ * transaction that reads and then writes fails at once with SQLITE_BUSY_SNAPSHOT when another
+ * connection committed in between; busy_timeout cannot help, since waiting would not refresh its
+ * snapshot. Other connections do commit in between: the ingest of readings on another process, a
+ * script finishing runs, the analysis worker. So every transaction takes the write lock when it
+ * begins (BEGIN IMMEDIATE) and waits its turn under busy_timeout instead.
+ */
+class ImmediateSqliteDriver extends SqliteDriver {
+	override async beginTransaction(connection: DatabaseConnection): Promise<void> {
+		await connection.executeQuery(CompiledQuery.raw('begin immediate'));
+	}
+}
+
+class ImmediateSqliteDialect extends SqliteDialect {
+	constructor(private readonly sqlite: SQLite.Database) {
+		super({ database: sqlite });
+	}
+	override createDriver(): Driver {
+		return new ImmediateSqliteDriver({ database: this.sqlite });
+	}
+}
+
 export function createKysely(sqlite: SQLite.Database): Kysely<Database> {
-	return new Kysely<Database>({ dialect: new SqliteDialect({ database: sqlite }) });
+	return new Kysely<Database>({ dialect: new ImmediateSqliteDialect(sqlite) });
 }
