@@ -60,6 +60,22 @@ describe('LiveHub', () => {
 		hub.close();
 	});
 
+	it('sends a subscriber that keeps up every reading, even when one update carries more than the congested cap', async () => {
+		// The reducer coalesces commits when it falls behind, so one update may hold thousands of readings.
+		const hub = new LiveHub();
+		const socket = new FakeSocket();
+		const sub = new Subscriber(socket);
+		hub.subscribeRun(sub, 1, null, null);
+		const n = PENDING_READINGS_CAP * 3 + 7;
+		hub.publishRun(1, Array.from({ length: n }, (_, i) => r(i)), null);
+		for (let k = 0; k < 10; k++) await tick();
+		const seqs = socket.messages.flatMap((m) => m.readings.map((x: LiveReading) => x.seq));
+		expect(seqs).toEqual(Array.from({ length: n }, (_, i) => i));
+		expect(socket.messages.every((m) => m.skipped === 0)).toBe(true);
+		expect(sub.decimated).toBe(0);
+		hub.close();
+	});
+
 	it('sends at most a few messages per subscriber per flush', async () => {
 		const hub = new LiveHub();
 		const s = new FakeSocket();

@@ -20,6 +20,12 @@ export const LOW_WATER_BYTES = 128 * 1024;
 export const MAX_SENDS_PER_FLUSH = 8;
 /** readings kept per run for a subscriber that cannot keep up (decimated beyond this) */
 export const PENDING_READINGS_CAP = 2000;
+/**
+ * readings kept for a subscriber that is keeping up, before it is decimated all the same: one reducer
+ * update can carry several thousand readings (it coalesces commits when it falls behind), and a flowing
+ * subscriber sends them on the next flush, so only a memory bound is needed here.
+ */
+export const FLOWING_PENDING_CAP = 50_000;
 /** readings per message */
 export const READINGS_PER_MESSAGE = 500;
 const CONGESTION_CHECK_MS = 20;
@@ -115,7 +121,7 @@ export class LiveHub {
 		for (const sub of set) {
 			const rs = sub.runs.get(runId)!;
 			for (const r of readings) if (r.seq > rs.afterSeq) rs.pending.push(r);
-			if (rs.pending.length > PENDING_READINGS_CAP) this.decimate(sub, rs);
+			if (rs.pending.length > (sub.congested ? PENDING_READINGS_CAP : FLOWING_PENDING_CAP)) this.decimate(sub, rs);
 			rs.detector = detector;
 			rs.detectorDirty = true;
 			this.markDirty(sub);
