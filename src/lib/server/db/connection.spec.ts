@@ -46,5 +46,4 @@ describe('app transactions on a WAL database shared with other connections', () 
 		await db.destroy();
 		other.close();
 	});
-
 });

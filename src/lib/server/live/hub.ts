@@ -219,8 +219,10 @@ export class LiveHub {
 			}
 			if (rs.history) continue;
 			while ((rs.pending.length > 0 || rs.detectorDirty) && room()) {
-				const readings = rs.pending.length <= READINGS_PER_MESSAGE ? rs.pending : rs.pending.slice(0, READINGS_PER_MESSAGE);
-				rs.pending = rs.pending.length <= READINGS_PER_MESSAGE ? [] : rs.pending.slice(READINGS_PER_MESSAGE);
+				// splice, not two slices: a flowing subscriber may hold tens of thousands (FLOWING_PENDING_CAP),
+				// and copying the rest on every message made draining 50 000 cost ~13 ms against ~1 ms here
+				// (V8 trims the front of the array in place).
+				const readings = rs.pending.splice(0, READINGS_PER_MESSAGE);
 				this.send(sub, { type: 'readings', runId, source: 'live', readings, skipped: rs.skipped, detector: rs.detector });
 				rs.skipped = 0;
 				rs.detectorDirty = false;
