@@ -4,9 +4,11 @@ import {
 	deviation,
 	dTdW,
 	fitDeviation,
+	prepareDeviation,
 	ratioFromTemperature,
 	subrange,
 	SUBRANGE_IDS,
+	temperatureFromPreparedRatio,
 	temperatureFromRatio,
 	withAluminiumRatio
 } from './deviation';
@@ -135,6 +137,28 @@ describe('temperature ↔ W', () => {
 			}),
 			{ numRuns: 300 }
 		);
+	});
+
+	it.each([...SUBRANGE_IDS])('%s: prepared coefficients give exactly temperatureFromRatio (property)', (id) => {
+		const s = subrange(id);
+		fc.assert(
+			fc.property(fc.double({ min: s.minKelvin, max: s.maxKelvin, noNaN: true }), coeffArb(id), (t, k) => {
+				const w = ratioFromTemperature(t, id, k);
+				return temperatureFromPreparedRatio(w, prepareDeviation(id, k)) === temperatureFromRatio(w, id, k);
+			}),
+			{ numRuns: 200 }
+		);
+	});
+
+	it('prepareDeviation refuses what temperatureFromRatio refuses, and later changes to the object do not reach it', () => {
+		expect(() => prepareDeviation('TPW-Sn-Zn', { a: Number.NaN, b: 0 })).toThrow(/coefficient a/);
+		expect(() => prepareDeviation('TPW-Sn-Zn-Al-Ag', { a: 0, b: 0, c: 0, d: 0 })).toThrow(/wAl/);
+		const k: DeviationCoefficients = { ...SAMPLE['TPW-Sn-Zn'] };
+		const p = prepareDeviation('TPW-Sn-Zn', k);
+		const before = temperatureFromPreparedRatio(1.9, p);
+		k.a = 0;
+		expect(temperatureFromPreparedRatio(1.9, p)).toBe(before);
+		expect(() => temperatureFromPreparedRatio(-1, p)).toThrow(/W must be > 0/);
 	});
 
 	it('ratioFromTemperature satisfies W − ΔW(W) = W_r(T) (definition)', () => {

@@ -33,6 +33,9 @@ export {
 	deviationSlope,
 	fitDeviation,
 	temperatureFromRatio,
+	prepareDeviation,
+	temperatureFromPreparedRatio,
+	type PreparedDeviation,
 	ratioFromTemperature,
 	dTdW,
 	withAluminiumRatio

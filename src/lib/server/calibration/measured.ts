@@ -61,7 +61,7 @@ function compute(sqlite: SQLite.Database, runId: number, run: RunFacts): Measure
 	const ctx = loadReductionContext(sqlite, runId);
 	if (!ctx) return { ok: false, runId, problem: `run #${runId} does not exist` };
 	if (ctx.rTpwHistory.length === 0) return { ok: false, runId, problem: 'the thermometer has no R_TPW on file' };
-	const raw: ReductionContext = { ...ctx, basis: 'uncalibrated', subrange: null, coefficients: null, problem: null, rTpwSpan: null };
+	const raw: ReductionContext = { ...ctx, basis: 'uncalibrated', subrange: null, coefficients: null, prepared: null, problem: null, rTpwSpan: null };
 	const { samples, t0Ms } = runSamples(sqlite, raw);
 	if (samples.length < 20 || t0Ms === null) return { ok: false, runId, problem: 'too few readings to analyse' };
 	const analysis = analyseStoredRun(samples, run);

@@ -7,8 +7,11 @@ import {
 	expectedSensorKelvin,
 	resistanceFromBridgeRatio,
 	rTpwNearestInTime,
+	prepareDeviation,
+	temperatureFromPreparedRatio,
 	temperatureFromRatio,
 	type DeviationCoefficients,
+	type PreparedDeviation,
 	type FixedPointId,
 	type StandardResistor,
 	type SubrangeId
@@ -31,6 +34,8 @@ export interface ReductionContext {
 	basis: ReductionBasis;
 	subrange: SubrangeId | null;
 	coefficients: DeviationCoefficients | null;
+	/** the calibration's deviation function checked once (null: none, or coefficients it refuses) */
+	prepared: PreparedDeviation | null;
 	corrections: { depthMetre: number; pressurePa: number };
 	expectedKelvin: number | null;
 	loadedAtMs: number;
@@ -59,6 +64,8 @@ interface RunRow {
 
 /** With no calibration the deviation is taken as zero (W_r = W); any sub-range of the right side of the TPW then gives T90 from the reference function. */
 const ZERO: DeviationCoefficients = { a: 0, b: 0, c: 0, d: 0, wAl: 1e9 };
+const ZERO_BELOW_TPW = prepareDeviation('Ar-Hg-TPW', ZERO);
+const ZERO_ABOVE_TPW = prepareDeviation('TPW-Sn-Zn-Al-Ag', ZERO);
 
 export function loadReductionContext(sqlite: SQLite.Database, runId: number, nowMs = Date.now()): ReductionContext | null {
 	const run = sqlite
@@ -108,12 +115,22 @@ export function loadReductionContext(sqlite: SQLite.Database, runId: number, now
 		basis,
 		subrange: cal?.subrange ?? null,
 		coefficients,
+		prepared: prepared(cal?.subrange ?? null, coefficients),
 		corrections,
 		expectedKelvin,
 		loadedAtMs: nowMs,
 		problem,
 		rTpwSpan: null
 	};
+}
+
+function prepared(subrange: SubrangeId | null, coefficients: DeviationCoefficients | null): PreparedDeviation | null {
+	if (!subrange || !coefficients) return null;
+	try {
+		return prepareDeviation(subrange, coefficients);
+	} catch {
+		return null; // each reading then meets temperatureFromRatio's own error, which says what is wrong
+	}
 }
 
 function rTpwAt(ctx: ReductionContext, timeMs: number): number {
@@ -156,18 +173,16 @@ export function reduceInto(ctx: ReductionContext, ratio: number, timeMs: number,
 	if (ctx.basis === 'unavailable') return;
 	try {
 		const rTpwOhm = rTpwAt(ctx, timeMs);
-		let subrange = ctx.subrange;
-		let coefficients = ctx.coefficients;
+		let deviation = ctx.prepared;
 		if (ctx.basis === 'uncalibrated') {
 			const w = (ratio * ctx.resistor.calibratedOhm) / rTpwOhm;
-			subrange = w < 1 ? 'Ar-Hg-TPW' : 'TPW-Sn-Zn-Al-Ag';
-			coefficients = ZERO;
+			deviation = w < 1 ? ZERO_BELOW_TPW : ZERO_ABOVE_TPW;
 		}
 		// reduceReading's steps (R = ratio × R_s(t); W = R/R_TPW; T90 from W; minus the expected sensor
 		// temperature), with the expected temperature and its corrections computed once per run.
 		const resistanceOhm = resistanceFromBridgeRatio(ratio, ctx.resistor, ctx.resistorTemperatureCelsius);
 		const w = resistanceOhm / rTpwOhm;
-		const t90Kelvin = temperatureFromRatio(w, subrange!, coefficients!);
+		const t90Kelvin = deviation ? temperatureFromPreparedRatio(w, deviation) : temperatureFromRatio(w, ctx.subrange!, ctx.coefficients!);
 		out.resistanceOhm = resistanceOhm;
 		out.w = w;
 		out.t90Kelvin = t90Kelvin;
