@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { columnsToReadings, handoffAfter, packRows, PACKED_STRIDE, Reducer, REDUCER_CHUNK, type ReducerUpdate } from './reducer';
+import { BUSY_ROWS_PER_S, columnsToReadings, handoffAfter, packRows, PACKED_STRIDE, Reducer, REDUCER_CHUNK, type ReducerUpdate } from './reducer';
 import { ingestTestDb } from './test-db';
 
 const waitFor = async (pred: () => boolean, ms = 5000) => {
@@ -76,15 +76,42 @@ describe('Reducer (reduction + plateau tracker, fed from storage)', () => {
 
 	it('hand-over: only seqs above the cursor, in seq order, at most the chunk, the rest kept', () => {
 		const pack = (seqs: number[]) => packRows(seqs.map((seq) => ({ seq, timeMs: seq * 10, ratio: 1 + seq, currentMilliAmp: 1, channel: 2 })));
-		const seqs = (a: Float64Array | null) => (a ? Array.from({ length: a.length / PACKED_STRIDE }, (_, i) => a[i * PACKED_STRIDE]) : null);
+		const seqs = (a: Float64Array) => Array.from({ length: a.length / PACKED_STRIDE }, (_, i) => a[i * PACKED_STRIDE]);
+		const restSeqs = (rest: Float64Array[]) => rest.flatMap(seqs);
 		const inOrder = handoffAfter([pack([3, 4]), pack([5, 6])], 2, 100);
 		expect(seqs(inOrder.rows)).toEqual([3, 4, 5, 6]);
-		expect(inOrder.rest).toBeNull();
+		expect(inOrder.rest).toEqual([]);
+		// In order but more than the chunk: the first rows, the rest kept as it came (split inside a chunk).
+		const long = handoffAfter([pack([3, 4, 5]), pack([6, 7]), pack([8])], 2, 4);
+		expect(seqs(long.rows)).toEqual([3, 4, 5, 6]);
+		expect(long.rest.map(seqs)).toEqual([[7], [8]]);
+		expect(Array.from(long.rows.subarray(3 * PACKED_STRIDE, 4 * PACKED_STRIDE))).toEqual([6, 60, 7, 1, 2]);
+		const next = handoffAfter(long.rest, 6, 4);
+		expect(seqs(next.rows)).toEqual([7, 8]);
+		expect(next.rest).toEqual([]);
+		// Rows at or below the cursor are dropped on the in-order path too.
+		expect(seqs(handoffAfter([pack([1, 2, 3])], 2, 10).rows)).toEqual([3]);
 		const mixed = handoffAfter([pack([3, 9, 4]), pack([2, 8, 1])], 2, 3);
 		expect(seqs(mixed.rows)).toEqual([3, 4, 8]);
-		expect(seqs(mixed.rest)).toEqual([9]);
+		expect(restSeqs(mixed.rest)).toEqual([9]);
 		// every field travels with its seq
 		expect(Array.from(mixed.rows.subarray(PACKED_STRIDE, 2 * PACKED_STRIDE))).toEqual([4, 40, 5, 1, 2]);
+	});
+
+	it('counts the ingest as busy only while rows arrive faster than live benches make them', async () => {
+		const { sqlite, runId } = await ingestTestDb();
+		const reducer = new Reducer(sqlite, () => {});
+		const rows = (from: number, n: number) => packRows(Array.from({ length: n }, (_, i) => ({ seq: from + i, timeMs: 1_000 + from + i, ratio: 1.14265, currentMilliAmp: 1, channel: 1 })));
+		// Fifty benches at ten readings a second, in 50 ms: far below the limit.
+		for (let b = 0; b < 50; b++) reducer.notify(runId, rows(b, 1));
+		expect(reducer.ingestBusy()).toBe(false);
+		// A replay: 500-reading batches back to back, past BUSY_ROWS_PER_S within one window.
+		const perWindow = (BUSY_ROWS_PER_S * 100) / 1000;
+		for (let i = 0; i * 500 <= perWindow; i++) reducer.notify(runId, rows(100 + i * 500, 500));
+		expect(reducer.ingestBusy()).toBe(true);
+		// and quiet again a little after the burst
+		expect(reducer.ingestBusy(performance.now() + 300)).toBe(false);
+		reducer.drop(runId);
 	});
 
 	it('reduces every stored reading exactly once, in seq order, whatever mix of hand-over and storage it meets', async () => {
