@@ -1,13 +1,15 @@
 // The readings endpoint has two adapters around one answer (src/lib/server/ingest/http.ts): the built
 // server answers straight from node:http (ingest/direct.ts), the SvelteKit route serves the dev server.
-// The same requests against a server of each kind must get the same answers, byte for byte.
+// The same requests against a server of each kind must get the same answers, byte for byte. The
+// second server also keeps its writer in-process (STILLPOINT_WRITER=inline) where the first runs it on
+// its own thread, so the comparison covers both writers too.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ingestFixture, post, readings, type Fixture } from './ingest-fixture';
 
 let direct: Fixture;
 let routed: Fixture;
 beforeAll(async () => {
-	[direct, routed] = await Promise.all([ingestFixture(), ingestFixture({ STILLPOINT_DIRECT_INGEST: 'off' })]);
+	[direct, routed] = await Promise.all([ingestFixture(), ingestFixture({ STILLPOINT_DIRECT_INGEST: 'off', STILLPOINT_WRITER: 'inline' })]);
 }, 90_000);
 afterAll(async () => {
 	await Promise.all([direct?.close(), routed?.close()]);
@@ -42,6 +44,9 @@ describe('readings endpoint: node:http adapter and SvelteKit route', () => {
 		expect(a.answers[0].type).toMatch(/^application\/json/);
 		expect(a.stored).toBe(65);
 		expect(b.stored).toBe(65);
+		const modes = async (f: Fixture) => ((await (await fetch(`${f.server.baseUrl}/api/v1/health`)).json()) as { ingest: unknown }).ingest;
+		expect(await modes(direct)).toEqual({ writer: 'thread', reducer: 'worker' });
+		expect(await modes(routed)).toEqual({ writer: 'inline', reducer: 'worker' });
 	});
 
 	it('answers a form-like content type with the API\'s 415 in the built server', async () => {

@@ -85,7 +85,6 @@ export async function readingsAnswer(head: IngestRequestHead, readBody: () => Pr
 	if (!body.ok) return body.reason === 'too_large' ? refusal(413, 'payload_too_large', TOO_LARGE) : refusal(400, 'unreadable_body', 'The request body could not be read.');
 	const batch = parseBatchBody(body.text, format);
 	if (!batch.ok) return refusal(batch.status, batch.code, batch.message, batch.details);
-	// Made before the commit so that its view of the stored readings does not include this batch.
 	svc.runs.prepare(target.run.id);
 	const result = await svc.writer.write(target.run.id, auth.identity.tokenId, batch.readings);
 	if (!result.ok) {
@@ -93,9 +92,7 @@ export async function readingsAnswer(head: IngestRequestHead, readBody: () => Pr
 		if (result.code === 'run_not_found') return refusal(404, 'not_found', result.message);
 		return refusal(503, result.code, result.message, undefined, { 'retry-after': '1' });
 	}
-	let timeBackwards = 0;
-	for (const r of result.stored) if (r.timeBackwards) timeBackwards++;
-	return { status: 200, body: { accepted: result.accepted, duplicates: result.duplicates, highestDurableSeq: result.highestDurableSeq, timeBackwards } satisfies ReadingsResponse };
+	return { status: 200, body: { accepted: result.accepted, duplicates: result.duplicates, highestDurableSeq: result.highestDurableSeq, timeBackwards: result.timeBackwards } satisfies ReadingsResponse };
 }
 
 // ---------------------------------------------------------------- SvelteKit (dev server, fallback)

@@ -7,9 +7,10 @@ import { appDatabase } from '../db';
 import { RateLimiter } from '../rate-limit';
 import { LiveHub } from '../live/hub';
 import { createDownstream, type Downstream } from './downstream';
-import { GROUP_MAX_ROWS, GROUP_WINDOW_MS, LAST_USED_WRITE_INTERVAL_MS, RATE_BURST, RATE_REQUESTS_PER_S } from './limits';
-import { columnsToReadings, packRows, type ReducerUpdate } from './reducer';
-import { GroupCommitWriter, type CommittedRun } from './writer';
+import { RATE_BURST, RATE_REQUESTS_PER_S } from './limits';
+import { columnsToReadings, type ReducerUpdate } from './reducer';
+import type { ReadingWriter } from './writer';
+import { createReadingWriter } from './writer-thread';
 import { startAlerts } from '../alerts/runtime';
 import { analyseInBackground } from '../analysis/background';
 
@@ -21,42 +22,28 @@ export interface IngestConnection {
 }
 
 /**
- * What the main thread keeps per recording run: the largest timeMs stored (to flag a reading whose
- * time goes backwards in the answer to its sender) and the newest summary from the reducer.
+ * What the main thread keeps per recording run: that an instrument is sending to it (so the sweep
+ * notices when it stops recording) and the newest summary from the reducer.
  */
 export class RecordingRuns {
-	private readonly maxTimeMs = new Map<number, number>();
+	private readonly sending = new Set<number>();
 	readonly summaries = new Map<number, BenchSummary>();
 	onPrepare: ((runId: number) => void) | null = null;
-	private readonly maxTime: SQLite.Statement<[number], { t: number | null }>;
 
-	constructor(private readonly sqlite: SQLite.Database) {
-		this.maxTime = sqlite.prepare('select max(time_ms) as t from reading where run_id = ?');
-	}
+	constructor(private readonly sqlite: SQLite.Database) {}
 
-	/** Called before a submission, so the stored maximum does not yet include it. */
+	/** Called before an instrument's submission to the run. */
 	prepare(runId: number): void {
 		this.onPrepare?.(runId);
-		if (!this.maxTimeMs.has(runId)) this.maxTimeMs.set(runId, this.maxTime.get(runId)?.t ?? -Infinity);
-	}
-
-	/** Flags the stored readings whose time is earlier than one the run already had. */
-	flag(c: CommittedRun): void {
-		if (!this.maxTimeMs.has(c.runId)) return; // not prepared: the reducer's flags still apply
-		let max = this.maxTimeMs.get(c.runId)!;
-		for (const r of c.stored) {
-			if (r.timeMs < max) r.timeBackwards = true;
-			else max = r.timeMs;
-		}
-		this.maxTimeMs.set(c.runId, max);
+		this.sending.add(runId);
 	}
 
 	known(): number[] {
-		return [...new Set([...this.maxTimeMs.keys(), ...this.summaries.keys()])];
+		return [...new Set([...this.sending, ...this.summaries.keys()])];
 	}
 
 	forget(runId: number): void {
-		this.maxTimeMs.delete(runId);
+		this.sending.delete(runId);
 		this.summaries.delete(runId);
 	}
 
@@ -89,7 +76,7 @@ export class RecordingRuns {
 
 export interface IngestService {
 	sqlite: SQLite.Database;
-	writer: GroupCommitWriter;
+	writer: ReadingWriter;
 	runs: RecordingRuns;
 	downstream: Downstream;
 	hub: LiveHub;
@@ -108,7 +95,7 @@ const KEY = Symbol.for('stillpoint.ingest');
 type WithIngest = typeof globalThis & { [KEY]?: IngestService; [key: symbol]: unknown };
 const SWEEP_MS = 2000;
 
-export function createIngestService(sqlite: SQLite.Database, dbPath: string, opts: { inlineReducer?: boolean } = {}): IngestService {
+export function createIngestService(sqlite: SQLite.Database, dbPath: string, opts: { inlineReducer?: boolean; inlineWriter?: boolean } = {}): IngestService {
 	const hub = new LiveHub();
 	const connections = new Set<IngestConnection>();
 	const observers = new Set<(u: ReducerUpdate) => void>();
@@ -123,17 +110,7 @@ export function createIngestService(sqlite: SQLite.Database, dbPath: string, opt
 		for (const o of observers) o(u);
 	};
 	const downstream = createDownstream({ sqlite, dbPath, onUpdate, inline: opts.inlineReducer });
-	const writer = new GroupCommitWriter(sqlite, {
-		windowMs: GROUP_WINDOW_MS,
-		maxRows: GROUP_MAX_ROWS,
-		lastUsedIntervalMs: LAST_USED_WRITE_INTERVAL_MS,
-		onCommit: (committed) => {
-			for (const c of committed) {
-				runs.flag(c);
-				if (c.stored.length > 0) downstream.notify(c.runId, packRows(c.stored));
-			}
-		}
-	});
+	const writer = createReadingWriter({ sqlite, dbPath, inline: opts.inlineWriter, onCommitRows: (runId, rows) => downstream.notify(runId, rows) });
 	// A run (re)started after it ended in this process is a new recording: forget that it ended.
 	runs.onPrepare = (runId) => ended.delete(runId);
 	const limiter = new RateLimiter(RATE_BURST, RATE_REQUESTS_PER_S);
@@ -182,6 +159,12 @@ export function createIngestService(sqlite: SQLite.Database, dbPath: string, opt
 	}, SWEEP_MS);
 	timer.unref();
 	return service;
+}
+
+/** Where the ingest's writer and reducer run, once the ingest has started in this process (for /api/v1/health). */
+export function ingestModes(): { writer: 'thread' | 'inline'; reducer: 'worker' | 'inline' } | null {
+	const svc = (globalThis as WithIngest)[KEY];
+	return svc ? { writer: svc.writer.mode, reducer: svc.downstream.mode } : null;
 }
 
 /** The ingest of this process, made on first use on the app database. */

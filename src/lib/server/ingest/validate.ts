@@ -10,8 +10,6 @@ export interface ValidReading {
 	ratio: number;
 	currentMilliAmp: number;
 	channel: number;
-	/** set after the commit when its time is earlier than a reading the run already had */
-	timeBackwards?: true;
 }
 
 export interface FieldError {

@@ -43,11 +43,11 @@ describe('GroupCommitWriter', () => {
 	});
 
 	it('counts duplicates (already stored, or repeated in the batch) without storing them again', async () => {
-		const { writer, count, runId, run } = await setup();
+		const { writer, commits, count, runId, run } = await setup();
 		await writer.write(runId, null, range(0, 10));
 		const again = await writer.write(runId, null, [...range(5, 10), rd(14), rd(20), rd(3)]);
 		expect(again).toMatchObject({ ok: true, accepted: 6, duplicates: 7, highestDurableSeq: 20 });
-		if (again.ok) expect(again.stored.map((r) => r.seq)).toEqual([10, 11, 12, 13, 14, 20]);
+		expect(commits.at(-1)!.flatMap((c) => c.stored.map((r) => r.seq))).toEqual([10, 11, 12, 13, 14, 20]);
 		expect(count()).toBe(16);
 		expect(run()).toMatchObject({ reading_count: 16, highest_seq: 20 });
 	});
@@ -132,6 +132,33 @@ describe('GroupCommitWriter', () => {
 		expect(writer.stats.walSyncs).toBe(2);
 	});
 
+	it('with overlapping fsyncs and no window: one fsync per group at once, each answering only the groups before it', async () => {
+		const t = await ingestTestDb();
+		const syncs: ((e: Error | null) => void)[] = [];
+		const writer = new GroupCommitWriter(t.sqlite, { windowMs: 0, overlappingSyncs: true, maxRows: 4000, lastUsedIntervalMs: 5000, syncWal: (done) => syncs.push(done) });
+		const answered: string[] = [];
+		const a = writer.write(t.runId, null, range(0, 10)).then((r) => (answered.push('a'), r));
+		await new Promise((r) => setImmediate(r));
+		await new Promise((r) => setImmediate(r));
+		expect(syncs).toHaveLength(1); // committed in the next turn of the loop: no window
+		const b = writer.write(t.runId, null, range(10, 5)).then((r) => (answered.push('b'), r));
+		await new Promise((r) => setTimeout(r, 5));
+		expect(syncs).toHaveLength(2); // started while the first is in flight
+		// The later fsync returns first: it answers b only; a waits for its own.
+		syncs[1](null);
+		expect(await b).toMatchObject({ ok: true, accepted: 5, highestDurableSeq: 14 });
+		expect(answered).toEqual(['b']);
+		const closing = writer.close();
+		let closed = false;
+		void closing.then(() => (closed = true));
+		await new Promise((r) => setTimeout(r, 5));
+		expect(closed).toBe(false); // close waits for every fsync in flight
+		syncs[0](null);
+		expect(await a).toMatchObject({ ok: true, accepted: 10 });
+		await closing;
+		expect(answered).toEqual(['b', 'a']);
+	});
+
 	it('answers storage_error when the fsync fails, and a resend then meets the rows as duplicates', async () => {
 		const t = await ingestTestDb();
 		let fail = true;
@@ -139,6 +166,31 @@ describe('GroupCommitWriter', () => {
 		expect(await writer.write(t.runId, null, range(0, 4))).toMatchObject({ ok: false, code: 'storage_error', message: expect.stringContaining('EIO') });
 		fail = false;
 		expect(await writer.write(t.runId, null, range(0, 4))).toMatchObject({ ok: true, accepted: 0, duplicates: 4, highestDurableSeq: 3 });
+	});
+
+	it('counts readings stored with a time earlier than one the run already had, across batches and writers', async () => {
+		const { writer, runId, sqlite } = await setup();
+		// seq 3 goes back in time within the batch; seq 2 (a duplicate of nothing yet) is stored in order.
+		const first = [rd(0, 100), rd(1, 200), rd(2, 300), rd(3, 150), rd(4, 400)];
+		expect(await writer.write(runId, null, first)).toMatchObject({ ok: true, accepted: 5, timeBackwards: 1 });
+		// Against what was stored before: 350 < 400; duplicates are not counted (not stored).
+		expect(await writer.write(runId, null, [rd(4, 10), rd(5, 350), rd(6, 500)])).toMatchObject({ ok: true, accepted: 2, duplicates: 1, timeBackwards: 1 });
+		await writer.close();
+		// A new writer (a restart) learns the run's latest time from storage.
+		const again = new GroupCommitWriter(sqlite, { windowMs: 3, maxRows: 4000, lastUsedIntervalMs: 5000 });
+		expect(await again.write(runId, null, [rd(7, 499), rd(8, 501)])).toMatchObject({ ok: true, accepted: 2, timeBackwards: 1 });
+		await again.close();
+	});
+
+	it('counts timeBackwards once when a group is written again on the row-by-row path', async () => {
+		const { writer, runId, sqlite, count } = await setup();
+		// A row the writer does not know of (stored by another path, run.highest_seq not moved on): the
+		// fast path meets it, the transaction is rolled back and the group written again row by row.
+		sqlite.prepare('insert into reading (run_id, seq, time_ms, ratio, current_ma, channel) values (?, 150, 5000, 1.14, 1, 1)').run(runId);
+		const readings = [...range(0, 200).map((r) => ({ ...r, timeMs: 10_000 + r.seq })), rd(200, 9_000)];
+		expect(await writer.write(runId, null, readings)).toMatchObject({ ok: true, accepted: 200, duplicates: 1, timeBackwards: 1 });
+		expect(count()).toBe(201);
+		await writer.close();
 	});
 
 	it('fsyncs the real -wal file by default and keeps the connection at synchronous=NORMAL', async () => {

@@ -15,10 +15,12 @@
 // - Otherwise (a rollback-journal or in-memory database: some tests) the commit runs at
 //   synchronous=FULL and is answered at once.
 //
-// It shares the app's sqlite handle (appDatabase().sqlite): the handle is used by Kysely too, and a
-// Kysely transaction may be open across an await. Writing then would put our rows into someone else's
-// transaction, so a group waits (a millisecond at a time) until the handle is outside a transaction.
-// Sharing also means no lock contention inside the process; other processes meet busy_timeout.
+// In the built server it runs on a thread of its own with its own connection (writer-thread.ts), so
+// that the inserts overlap the main thread's HTTP and JSON work; other connections (the main thread's,
+// other processes) meet busy_timeout. In-process (dev server, unit tests, STILLPOINT_WRITER=inline) it
+// shares the app's sqlite handle, which Kysely uses too, and a Kysely transaction may be open across an
+// await. Writing then would put our rows into someone else's transaction, so a group waits (a
+// millisecond at a time) until the handle is outside a transaction.
 
 import { closeSync, fdatasync, openSync } from 'node:fs';
 import type SQLite from 'better-sqlite3';
@@ -39,8 +41,8 @@ export type SubmissionResult =
 			duplicates: number;
 			/** run.highest_seq after the commit */
 			highestDurableSeq: number;
-			/** the readings newly stored, in submission order */
-			stored: ValidReading[];
+			/** readings stored whose timeMs is earlier than one the run already had (docs/ingest-protocol.md) */
+			timeBackwards: number;
 	  }
 	| { ok: false; code: 'run_not_found' | 'run_not_recording' | 'storage_error' | 'shutting_down'; message: string };
 
@@ -51,12 +53,28 @@ export interface CommittedRun {
 	highestDurableSeq: number;
 }
 
+/** What the endpoints need of a writer: this class in-process, or its proxy on the writer thread. */
+export interface ReadingWriter {
+	submit(s: Submission): void;
+	/** Promise form for HTTP handlers. */
+	write(runId: number, tokenId: number | null, readings: ValidReading[]): Promise<SubmissionResult>;
+	/** readings submitted and not yet answered */
+	readonly pendingRows: number;
+	/** Writes what is queued, then refuses new submissions (graceful shutdown). */
+	close(): Promise<void>;
+	readonly mode: 'thread' | 'inline';
+}
+
 /** Rows per multi-row INSERT on the fast path (6 parameters each; SQLite allows 32 766). */
 const MULTI_ROWS = 100;
 
 class FastPathMiss extends Error {}
 
 export interface WriterOptions {
+	/**
+	 * A group closes this long after its first submission. 0: no window, a group is what queued up while
+	 * the previous one was being written (the writer thread, where nothing else competes for the loop).
+	 */
 	windowMs: number;
 	maxRows: number;
 	lastUsedIntervalMs: number;
@@ -68,6 +86,13 @@ export interface WriterOptions {
 	 * to observe or fail it; null forces the synchronous=FULL commit even on a WAL database.
 	 */
 	syncWal?: ((done: (error: Error | null) => void) => void) | null;
+	/**
+	 * Start an fsync for each commit at once, even while another is in flight (each still answers only
+	 * the groups committed before it started). Off: one at a time, the next covering everything
+	 * committed meanwhile; on a thread of its own the writer answers sooner with it on (measured by the
+	 * ingest benchmark), in-process it measured no faster.
+	 */
+	overlappingSyncs?: boolean;
 }
 
 export interface WriterStats {
@@ -81,7 +106,8 @@ export interface WriterStats {
 	walSyncMs: number;
 }
 
-export class GroupCommitWriter {
+export class GroupCommitWriter implements ReadingWriter {
+	readonly mode = 'inline';
 	private queue: Submission[] = [];
 	private queuedRows = 0;
 	private timer: NodeJS.Timeout | null = null;
@@ -89,6 +115,8 @@ export class GroupCommitWriter {
 	private closed = false;
 	private drainWaiters: (() => void)[] = [];
 	private readonly lastUsedWrittenMs = new Map<number, number>();
+	/** the largest timeMs stored per recording run, as of the last commit (for timeBackwards) */
+	private readonly maxTimeMs = new Map<number, number>();
 	/** set for one retry when the fast path met a row it did not expect (see writeGroup) */
 	private slowOnce = false;
 	private readonly params: (number | null)[] = new Array(MULTI_ROWS * 6);
@@ -96,6 +124,7 @@ export class GroupCommitWriter {
 		insert: SQLite.Statement;
 		insertMany: SQLite.Statement;
 		runState: SQLite.Statement<[number], { state: string; highest_seq: number }>;
+		maxTime: SQLite.Statement<[number], { t: number | null }>;
 		updateRun: SQLite.Statement;
 		touchToken: SQLite.Statement;
 	};
@@ -105,8 +134,8 @@ export class GroupCommitWriter {
 	private walFd: number | null = null;
 	/** answers of committed groups waiting for an fsync that starts after their commit */
 	private awaitingSync: ((error: Error | null) => void)[] = [];
-	/** one fsync at a time: overlapping ones measured no faster here (the device takes its flushes in turn) */
-	private syncing = false;
+	/** fsyncs in flight (at most one unless overlappingSyncs) */
+	private syncing = 0;
 	private syncIdleWaiters: (() => void)[] = [];
 
 	constructor(
@@ -121,6 +150,7 @@ export class GroupCommitWriter {
 			insert: sqlite.prepare('insert or ignore into reading (run_id, seq, time_ms, ratio, current_ma, channel) values (?, ?, ?, ?, ?, ?)'),
 			insertMany: sqlite.prepare(`insert or ignore into reading (run_id, seq, time_ms, ratio, current_ma, channel) values ${new Array(MULTI_ROWS).fill('(?, ?, ?, ?, ?, ?)').join(', ')}`),
 			runState: sqlite.prepare('select state, highest_seq from run where id = ?'),
+			maxTime: sqlite.prepare('select max(time_ms) as t from reading where run_id = ?'),
 			updateRun: sqlite.prepare('update run set reading_count = reading_count + ?, highest_seq = max(highest_seq, ?), last_reading_at = ? where id = ?'),
 			touchToken: sqlite.prepare('update bench_token set last_used_at = ? where id = ?')
 		};
@@ -138,7 +168,7 @@ export class GroupCommitWriter {
 		this.queue.push(s);
 		this.queuedRows += s.readings.length;
 		this.stats.pendingRows = this.queuedRows;
-		if (this.queuedRows >= this.o.maxRows) this.flushSoon();
+		if (this.queuedRows >= this.o.maxRows || this.o.windowMs === 0) this.flushSoon();
 		else if (!this.timer) this.timer = setTimeout(() => this.flush(), this.o.windowMs);
 	}
 
@@ -154,7 +184,7 @@ export class GroupCommitWriter {
 			this.flush();
 			if (this.queue.length > 0) await new Promise((r) => setTimeout(r, 2));
 		}
-		if (this.syncing) await new Promise<void>((r) => this.syncIdleWaiters.push(r));
+		if (this.syncing > 0) await new Promise<void>((r) => this.syncIdleWaiters.push(r));
 		if (this.walFd !== null) closeSync(this.walFd);
 		this.walFd = null;
 	}
@@ -172,25 +202,25 @@ export class GroupCommitWriter {
 	/** Runs answer() once the WAL holding the group just committed is on disk. */
 	private whenDurable(answer: (error: Error | null) => void): void {
 		this.awaitingSync.push(answer);
-		if (!this.syncing) this.startSync();
+		if (this.syncing === 0 || this.o.overlappingSyncs) this.startSync();
 	}
 
 	private startSync(): void {
 		const batch = this.awaitingSync;
 		this.awaitingSync = [];
-		this.syncing = true;
+		this.syncing++;
 		this.stats.walSyncs++;
 		const t0 = performance.now();
 		this.syncWal!((error) => {
 			this.stats.walSyncMs += performance.now() - t0;
-			this.syncing = false;
+			this.syncing--;
 			for (const answer of batch) answer(error);
 			// What queued up during the fsync is committed now, so that the next fsync covers it too
 			// (rather than waiting for its window and then for one more fsync).
 			if (this.queue.length > 0 && !this.closed) this.flush();
 			if (this.awaitingSync.length > 0) {
-				if (!this.syncing) this.startSync();
-			} else if (!this.syncing) for (const w of this.syncIdleWaiters.splice(0)) w();
+				if (this.syncing === 0) this.startSync();
+			} else if (this.syncing === 0) for (const w of this.syncIdleWaiters.splice(0)) w();
 		});
 	}
 
@@ -229,26 +259,27 @@ export class GroupCommitWriter {
 		const results: SubmissionResult[] = new Array(group.length);
 		const committed = new Map<number, CommittedRun>();
 		const nowMs = this.now();
+		let runs = new Map<number, GroupRun>();
 		// reading.run_id references run(id). The group reads each run's row inside its own IMMEDIATE
 		// transaction and writes only to runs that exist and are recording, so the foreign-key lookup
 		// SQLite would make for every single row proves nothing more; it is switched off for this
 		// transaction only (the pragma takes effect only outside a transaction, hence around it), and
 		// nothing else can run on the handle in between: flush is synchronous.
-		const write = () => {
+		const write = (): Map<number, GroupRun> => {
 			const foreignKeys = this.sqlite.pragma('foreign_keys', { simple: true }) === 1;
 			if (foreignKeys) this.sqlite.pragma('foreign_keys = OFF');
 			try {
-				this.sqlite.transaction(() => this.writeGroup(group, results, committed, nowMs)).immediate();
+				return this.sqlite.transaction(() => this.writeGroup(group, results, committed, nowMs)).immediate();
 			} finally {
 				if (foreignKeys) this.sqlite.pragma('foreign_keys = ON');
 			}
 		};
 		try {
-			if (this.syncWal) write();
+			if (this.syncWal) runs = write();
 			else {
 				this.sqlite.pragma('synchronous = FULL');
 				try {
-					write();
+					runs = write();
 				} finally {
 					this.sqlite.pragma('synchronous = NORMAL');
 				}
@@ -268,6 +299,12 @@ export class GroupCommitWriter {
 			for (let i = 0; i < group.length; i++) results[i] = { ok: false, code: 'storage_error', message };
 			committed.clear();
 			this.lastUsedWrittenMs.clear();
+			this.maxTimeMs.clear();
+		}
+		// Only a committed group moves the runs' latest times on (a failed or retried one is rolled back).
+		for (const [runId, run] of runs) {
+			if (run.ok) this.maxTimeMs.set(runId, run.maxTimeMs);
+			else this.maxTimeMs.delete(runId);
 		}
 		this.slowOnce = false;
 		this.queue.splice(0, take);
@@ -292,22 +329,25 @@ export class GroupCommitWriter {
 		if (this.syncWal && committed.size > 0) this.whenDurable(answer);
 		else answer(null);
 		if (this.queue.length > 0) {
-			if (this.queuedRows >= this.o.maxRows) this.flushSoon();
+			if (this.queuedRows >= this.o.maxRows || this.o.windowMs === 0) this.flushSoon();
 			else this.timer = setTimeout(() => this.flush(), this.o.windowMs);
 		} else if (this.drainWaiters.length > 0) {
 			for (const w of this.drainWaiters.splice(0)) w();
 		}
 	}
 
-	private writeGroup(group: Submission[], results: SubmissionResult[], committed: Map<number, CommittedRun>, nowMs: number): void {
-		const { insert, insertMany, runState, updateRun, touchToken } = this.statements;
-		const runs = new Map<number, { ok: boolean; state: string | null; highestSeq: number; added: number }>();
+	private writeGroup(group: Submission[], results: SubmissionResult[], committed: Map<number, CommittedRun>, nowMs: number): Map<number, GroupRun> {
+		const { insert, insertMany, runState, maxTime, updateRun, touchToken } = this.statements;
+		const runs = new Map<number, GroupRun>();
 		// The run's state is read inside the write transaction: a run that stopped recording a moment
 		// ago gets nothing more, however the readings were queued.
 		for (const s of group) {
 			if (!runs.has(s.runId)) {
 				const row = runState.get(s.runId);
-				runs.set(s.runId, { ok: row?.state === 'recording', state: row?.state ?? null, highestSeq: row?.highest_seq ?? -1, added: 0 });
+				const ok = row?.state === 'recording';
+				// The run's latest time is read once per run (a scan of its readings) and then kept up to date.
+				const maxTimeMs = !ok ? -Infinity : (this.maxTimeMs.get(s.runId) ?? maxTime.get(s.runId)?.t ?? -Infinity);
+				runs.set(s.runId, { ok, state: row?.state ?? null, highestSeq: row?.highest_seq ?? -1, added: 0, maxTimeMs });
 			}
 		}
 		for (let i = 0; i < group.length; i++) {
@@ -322,7 +362,8 @@ export class GroupCommitWriter {
 			}
 			let entry = committed.get(s.runId);
 			if (!entry) committed.set(s.runId, (entry = { runId: s.runId, stored: [], highestDurableSeq: run.highestSeq }));
-			const stored: ValidReading[] = [];
+			let stored = 0;
+			let backwards = 0;
 			// Fast path: a seq above the run's highest stored seq cannot be a duplicate, so such readings go in
 			// 100 to a statement. Anything else takes the row-by-row INSERT OR IGNORE path, after the
 			// fast rows so far are written (a repeated seq in the batch must meet its first copy).
@@ -354,22 +395,26 @@ export class GroupCommitWriter {
 			for (const r of s.readings) {
 				if (r.seq > run.highestSeq && !this.slowOnce) {
 					fast.push(r);
-					stored.push(r);
+					stored++;
 					entry.stored.push(r);
+					if (r.timeMs < run.maxTimeMs) backwards++;
+					else run.maxTimeMs = r.timeMs;
 					run.highestSeq = r.seq;
 					if (fast.length >= MULTI_ROWS) flushFast(false);
 					continue;
 				}
 				flushFast(true);
 				if (insert.run(s.runId, r.seq, r.timeMs, r.ratio, r.currentMilliAmp, r.channel).changes === 1) {
-					stored.push(r);
+					stored++;
 					entry.stored.push(r);
+					if (r.timeMs < run.maxTimeMs) backwards++;
+					else run.maxTimeMs = r.timeMs;
 					if (r.seq > run.highestSeq) run.highestSeq = r.seq;
 				}
 			}
 			flushFast(true);
-			run.added += stored.length;
-			results[i] = { ok: true, accepted: stored.length, duplicates: s.readings.length - stored.length, highestDurableSeq: -1, stored };
+			run.added += stored;
+			results[i] = { ok: true, accepted: stored, duplicates: s.readings.length - stored, highestDurableSeq: -1, timeBackwards: backwards };
 			if (s.tokenId !== null && nowMs - (this.lastUsedWrittenMs.get(s.tokenId) ?? -Infinity) >= this.o.lastUsedIntervalMs) {
 				touchToken.run(nowMs, s.tokenId);
 				this.lastUsedWrittenMs.set(s.tokenId, nowMs);
@@ -386,5 +431,14 @@ export class GroupCommitWriter {
 			const r = results[i];
 			if (r.ok) r.highestDurableSeq = runs.get(group[i].runId)!.highestSeq;
 		}
+		return runs;
 	}
+}
+
+interface GroupRun {
+	ok: boolean;
+	state: string | null;
+	highestSeq: number;
+	added: number;
+	maxTimeMs: number;
 }
