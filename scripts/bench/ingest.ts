@@ -290,9 +290,13 @@ function cpuTicks(): [number, number] {
 
 /**
  * Waits until the machine is quiet (the server's reducer has caught up with the previous phase, the
- * last child has exited), so one phase's leftovers do not run inside the next one's clock.
+ * last child has exited, the analyses of the runs just finished are done), so one phase's leftovers do
+ * not run inside the next one's clock. The server notices finished runs on its sweep (every 2 s) and
+ * only then starts their final analysis: without the first wait, the second round of every phase met
+ * the first round's analyses (it was the lowest round in each of four 5-round runs).
  */
 async function quiet(maxMs = 20_000): Promise<void> {
+	await new Promise((r) => setTimeout(r, 2_500));
 	const end = Date.now() + maxMs;
 	while (Date.now() < end) {
 		const [b0, t0] = cpuTicks();

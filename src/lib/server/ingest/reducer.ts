@@ -335,6 +335,9 @@ export class Reducer {
 				st.handoff.push(rows);
 				st.handoffRows += rows.length / PACKED_STRIDE;
 			}
+			// More than a live bench makes between two steps (a batch of a replay): a backlog from the start,
+			// not a step on the live path that the duty cycle does not hold back.
+			if (st.handoffRows > BURST_ROWS) this.backlogged.add(runId);
 		}
 		this.dirty.add(runId);
 		this.schedule();

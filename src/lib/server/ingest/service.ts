@@ -110,7 +110,22 @@ export function createIngestService(sqlite: SQLite.Database, dbPath: string, opt
 		for (const o of observers) o(u);
 	};
 	const downstream = createDownstream({ sqlite, dbPath, onUpdate, inline: opts.inlineReducer });
-	const writer = createReadingWriter({ sqlite, dbPath, inline: opts.inlineWriter, onCommitRows: (runId, rows) => downstream.notify(runId, rows) });
+	const writer = createReadingWriter({
+		sqlite,
+		dbPath,
+		inline: opts.inlineWriter,
+		onCommitRows: (runId, rows) => downstream.notify(runId, rows),
+		// Where both run on threads, the committed rows go from the writer to the reducer directly.
+		reducerPort: () => downstream.writerPort(),
+		// A writer thread that died may have committed rows it never handed on: storage has them.
+		onRestart: () => {
+			for (const id of runs.known()) downstream.notify(id);
+		}
+	});
+	downstream.onRestart = () => {
+		const port = downstream.writerPort();
+		if (port) writer.useReducerPort?.(port);
+	};
 	// A run (re)started after it ended in this process is a new recording: forget that it ended.
 	runs.onPrepare = (runId) => ended.delete(runId);
 	const limiter = new RateLimiter(RATE_BURST, RATE_REQUESTS_PER_S);

@@ -13,10 +13,11 @@
 // If the thread dies, everything it had not answered is answered with storage_error (the senders send
 // it again; what had been committed comes back as duplicates) and a new thread is started.
 
-import { isMainThread, parentPort, Worker, workerData } from 'node:worker_threads';
+import { isMainThread, parentPort, Worker, workerData, type MessagePort } from 'node:worker_threads';
 import type SQLite from 'better-sqlite3';
 import { openSqlite } from '../db/connection';
 import { GROUP_MAX_ROWS, GROUP_WINDOW_MS, LAST_USED_WRITE_INTERVAL_MS } from './limits';
+import type { CommitRowsMessage } from './downstream';
 import { packRows } from './reducer';
 import type { ValidReading } from './validate';
 import { GroupCommitWriter, type ReadingWriter, type Submission, type SubmissionResult } from './writer';
@@ -46,7 +47,7 @@ export interface Failure {
 	code: FailureCode;
 	message: string;
 }
-type ToThread = { type: 'submit'; buf: Float64Array } | { type: 'close' };
+type ToThread = { type: 'submit'; buf: Float64Array } | { type: 'close' } | { type: 'reducer-port'; port: MessagePort };
 type FromThread = { type: 'commit'; runs: { runId: number; rows: Float64Array }[] } | { type: 'results'; ok: Float64Array; failed: Failure[] } | { type: 'closed' };
 
 export function packSubmissions(subs: readonly PackedSubmission[]): Float64Array {
@@ -110,6 +111,16 @@ function inlineWriter(sqlite: SQLite.Database, onCommitRows: OnCommitRows): Grou
 	});
 }
 
+export interface ThreadWriterLinks {
+	/** A port to the reducer worker for the committed rows (null: they come to the main thread). */
+	reducerPort?: () => MessagePort | null;
+	/**
+	 * Called after the thread died and a new one started: rows it committed but had not handed on are
+	 * known only to storage, so the reducer must be told to read it.
+	 */
+	onRestart?: () => void;
+}
+
 /** The main thread's side of the writer thread. */
 class ThreadWriter implements ReadingWriter {
 	readonly mode = 'thread';
@@ -129,7 +140,8 @@ class ThreadWriter implements ReadingWriter {
 	constructor(
 		private readonly dbPath: string,
 		private readonly url: string,
-		private readonly onCommitRows: OnCommitRows
+		private readonly onCommitRows: OnCommitRows,
+		private readonly links: ThreadWriterLinks
 	) {
 		this.worker = this.start();
 	}
@@ -168,6 +180,12 @@ class ThreadWriter implements ReadingWriter {
 
 	write(runId: number, tokenId: number | null, readings: ValidReading[]): Promise<SubmissionResult> {
 		return new Promise((done) => this.submit({ runId, tokenId, readings, done }));
+	}
+
+	/** A new port to the reducer worker (after the reducer restarted). */
+	useReducerPort(port: MessagePort): void {
+		if (this.worker) this.worker.postMessage({ type: 'reducer-port', port } satisfies ToThread, [port]);
+		else port.close();
 	}
 
 	async close(): Promise<void> {
@@ -224,7 +242,8 @@ class ThreadWriter implements ReadingWriter {
 	}
 
 	private start(): Worker {
-		const w = new Worker(new URL(this.url), { workerData: { flag: WORKER_FLAG, dbPath: this.dbPath } });
+		const reducerPort = this.links.reducerPort?.() ?? null;
+		const w = new Worker(new URL(this.url), { workerData: { flag: WORKER_FLAG, dbPath: this.dbPath, reducerPort }, transferList: reducerPort ? [reducerPort] : [] });
 		w.on('message', (m: FromThread) => this.onMessage(m));
 		w.on('error', (e) => console.error('ingest: writer thread failed', e));
 		w.on('exit', (code) => {
@@ -235,7 +254,9 @@ class ThreadWriter implements ReadingWriter {
 			// Unknown whether it committed them: the senders send them again and meet duplicates if so.
 			this.failOpen('storage_error', 'The writer stopped before confirming these readings; send them again.');
 			setTimeout(() => {
-				if (!this.closed) this.worker = this.start();
+				if (this.closed) return;
+				this.worker = this.start();
+				this.links.onRestart?.();
 			}, 200).unref();
 		});
 		w.unref();
@@ -244,17 +265,23 @@ class ThreadWriter implements ReadingWriter {
 }
 
 /** The process's writer of readings: on its own thread where it can be, else in-process on `sqlite`. */
-export function createReadingWriter(opts: { sqlite: SQLite.Database; dbPath: string; onCommitRows: OnCommitRows; inline?: boolean }): ReadingWriter {
+export function createReadingWriter(opts: { sqlite: SQLite.Database; dbPath: string; onCommitRows: OnCommitRows; inline?: boolean } & ThreadWriterLinks): ReadingWriter {
 	const url = import.meta.url;
 	const canThread = !opts.inline && opts.dbPath !== ':memory:' && url.endsWith('.js') && process.env.STILLPOINT_WRITER !== 'inline';
-	return canThread ? new ThreadWriter(opts.dbPath, url, opts.onCommitRows) : inlineWriter(opts.sqlite, opts.onCommitRows);
+	return canThread ? new ThreadWriter(opts.dbPath, url, opts.onCommitRows, opts) : inlineWriter(opts.sqlite, opts.onCommitRows);
 }
 
 // ---------------------------------------------------------------- the thread
 
 if (!isMainThread && (workerData as { flag?: string } | null)?.flag === WORKER_FLAG && parentPort) {
 	const port = parentPort;
-	const sqlite = openSqlite((workerData as { dbPath: string }).dbPath);
+	const data = workerData as { dbPath: string; reducerPort: MessagePort | null };
+	const sqlite = openSqlite(data.dbPath);
+	// Only the writer's statements run on this connection, and it checks each run inside its own
+	// transaction (see GroupCommitWriter.flush): the per-row foreign-key lookup stays off for good.
+	sqlite.pragma('foreign_keys = OFF');
+	// Committed rows go straight to the reducer worker when there is one (else to the main thread).
+	let reducerPort = data.reducerPort;
 	let ok: { id: number; result: OkResult }[] = [];
 	let failed: Failure[] = [];
 	let flushScheduled = false;
@@ -285,11 +312,17 @@ if (!isMainThread && (workerData as { flag?: string } | null)?.flag === WORKER_F
 		// Posted before the group's answers, so the main thread hands the rows on before it answers.
 		onCommit: (committed) => {
 			const runs = committed.filter((c) => c.stored.length > 0).map((c) => ({ runId: c.runId, rows: packRows(c.stored) }));
-			if (runs.length > 0) port.postMessage({ type: 'commit', runs } satisfies FromThread, runs.map((r) => r.rows.buffer as ArrayBuffer));
+			if (runs.length === 0) return;
+			const transfer = runs.map((r) => r.rows.buffer as ArrayBuffer);
+			if (reducerPort) reducerPort.postMessage({ type: 'rows', runs } satisfies CommitRowsMessage, transfer);
+			else port.postMessage({ type: 'commit', runs } satisfies FromThread, transfer);
 		}
 	});
 	port.on('message', (m: ToThread) => {
-		if (m.type === 'submit') {
+		if (m.type === 'reducer-port') {
+			reducerPort?.close();
+			reducerPort = m.port;
+		} else if (m.type === 'submit') {
 			for (const s of unpackSubmissions(m.buf)) writer.submit({ runId: s.runId, tokenId: s.tokenId, readings: s.readings, done: (r) => answered(s.id, r) });
 		} else {
 			void writer.close().then(() => {

@@ -23,6 +23,7 @@
 // millisecond at a time) until the handle is outside a transaction.
 
 import { closeSync, fdatasync, openSync } from 'node:fs';
+import type { MessagePort } from 'node:worker_threads';
 import type SQLite from 'better-sqlite3';
 import type { ValidReading } from './validate';
 
@@ -63,6 +64,8 @@ export interface ReadingWriter {
 	/** Writes what is queued, then refuses new submissions (graceful shutdown). */
 	close(): Promise<void>;
 	readonly mode: 'thread' | 'inline';
+	/** The writer thread only: a new port to the reducer worker for the committed rows. */
+	useReducerPort?(port: MessagePort): void;
 }
 
 /** Rows per multi-row INSERT on the fast path (6 parameters each; SQLite allows 32 766). */
@@ -125,6 +128,7 @@ export class GroupCommitWriter implements ReadingWriter {
 		insertMany: SQLite.Statement;
 		runState: SQLite.Statement<[number], { state: string; highest_seq: number }>;
 		maxTime: SQLite.Statement<[number], { t: number | null }>;
+		foreignKeys: SQLite.Statement<[], number>;
 		updateRun: SQLite.Statement;
 		touchToken: SQLite.Statement;
 	};
@@ -151,6 +155,8 @@ export class GroupCommitWriter implements ReadingWriter {
 			insertMany: sqlite.prepare(`insert or ignore into reading (run_id, seq, time_ms, ratio, current_ma, channel) values ${new Array(MULTI_ROWS).fill('(?, ?, ?, ?, ?, ?)').join(', ')}`),
 			runState: sqlite.prepare('select state, highest_seq from run where id = ?'),
 			maxTime: sqlite.prepare('select max(time_ms) as t from reading where run_id = ?'),
+			// prepared once: sqlite.pragma() compiles its statement on every call
+			foreignKeys: sqlite.prepare<[], number>('pragma foreign_keys').pluck(),
 			updateRun: sqlite.prepare('update run set reading_count = reading_count + ?, highest_seq = max(highest_seq, ?), last_reading_at = ? where id = ?'),
 			touchToken: sqlite.prepare('update bench_token set last_used_at = ? where id = ?')
 		};
@@ -266,7 +272,7 @@ export class GroupCommitWriter implements ReadingWriter {
 		// transaction only (the pragma takes effect only outside a transaction, hence around it), and
 		// nothing else can run on the handle in between: flush is synchronous.
 		const write = (): Map<number, GroupRun> => {
-			const foreignKeys = this.sqlite.pragma('foreign_keys', { simple: true }) === 1;
+			const foreignKeys = this.statements.foreignKeys.get() === 1;
 			if (foreignKeys) this.sqlite.pragma('foreign_keys = OFF');
 			try {
 				return this.sqlite.transaction(() => this.writeGroup(group, results, committed, nowMs)).immediate();
