@@ -5,10 +5,11 @@
 // STILLPOINT_WRITER=inline: in-process on the app's handle.
 //
 // The thread is this very module started again as a worker entry (as the reducer's is, downstream.ts).
-// Submissions go to it packed in one Float64Array per turn of the event loop (packSubmissions); it
-// answers with packed results (packResults) and, before them, each commit's stored rows per run, packed
-// as the reducer takes them (packRows), which the main thread hands to the reducer. The durability
-// rule is the writer's own: nothing is answered before the commit holding it is on disk.
+// Submissions go to it packed in one Float64Array (packSubmissions): an HTTP batch at once, WebSocket
+// frames once per turn of the event loop. It answers with packed results (packResults). Each commit's
+// stored rows, packed as the reducer takes them (packRows), go straight to the reducer worker on a
+// port of their own (downstream.ts, writerPort), or to the main thread when the reducer runs there.
+// The durability rule is the writer's own: nothing is answered before the commit holding it is on disk.
 //
 // If the thread dies, everything it had not answered is answered with storage_error (the senders send
 // it again; what had been committed comes back as duplicates) and a new thread is started.
@@ -257,6 +258,7 @@ class ThreadWriter implements ReadingWriter {
 				if (this.closed) return;
 				this.worker = this.start();
 				this.links.onRestart?.();
+				this.send(); // what was submitted while there was no thread
 			}, 200).unref();
 		});
 		w.unref();
@@ -309,7 +311,7 @@ if (!isMainThread && (workerData as { flag?: string } | null)?.flag === WORKER_F
 		overlappingSyncs: true,
 		maxRows: GROUP_MAX_ROWS,
 		lastUsedIntervalMs: LAST_USED_WRITE_INTERVAL_MS,
-		// Posted before the group's answers, so the main thread hands the rows on before it answers.
+		// Handed on at the commit, before the group's answers (they wait for its fsync).
 		onCommit: (committed) => {
 			const runs = committed.filter((c) => c.stored.length > 0).map((c) => ({ runId: c.runId, rows: packRows(c.stored) }));
 			if (runs.length === 0) return;
