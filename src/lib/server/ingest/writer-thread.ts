@@ -122,8 +122,8 @@ export interface ThreadWriterLinks {
 	onRestart?: () => void;
 }
 
-/** The main thread's side of the writer thread. */
-class ThreadWriter implements ReadingWriter {
+/** The main thread's side of the writer thread (exported for its test, which starts a stand-in thread). */
+export class ThreadWriter implements ReadingWriter {
 	readonly mode = 'thread';
 	private worker: Worker | null = null;
 	private nextId = 1;
