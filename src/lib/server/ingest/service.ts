@@ -95,7 +95,7 @@ const KEY = Symbol.for('stillpoint.ingest');
 type WithIngest = typeof globalThis & { [KEY]?: IngestService; [key: symbol]: unknown };
 const SWEEP_MS = 2000;
 
-export function createIngestService(sqlite: SQLite.Database, dbPath: string, opts: { inlineReducer?: boolean; inlineWriter?: boolean } = {}): IngestService {
+export function createIngestService(sqlite: SQLite.Database, dbPath: string, opts: { inlineReducer?: boolean } = {}): IngestService {
 	const hub = new LiveHub();
 	const connections = new Set<IngestConnection>();
 	const observers = new Set<(u: ReducerUpdate) => void>();
@@ -113,7 +113,6 @@ export function createIngestService(sqlite: SQLite.Database, dbPath: string, opt
 	const writer = createReadingWriter({
 		sqlite,
 		dbPath,
-		inline: opts.inlineWriter,
 		onCommitRows: (runId, rows) => downstream.notify(runId, rows),
 		// Where both run on threads, the committed rows go from the writer to the reducer directly.
 		reducerPort: () => downstream.writerPort(),

@@ -1,15 +1,17 @@
 // The one writer of readings: group commit on better-sqlite3.
 //
-// Submissions (an HTTP batch, a WebSocket frame) queue up; a group closes GROUP_WINDOW_MS after its
-// first submission or at GROUP_MAX_ROWS rows, whichever comes first, and is written in one IMMEDIATE
-// transaction with prepared statements. No submission is answered before the commit that holds it is on
+// Submissions (an HTTP batch, a WebSocket frame) queue up; a group closes windowMs after its first
+// submission (GROUP_WINDOW_MS in-process; no window on the writer thread: a group is what queued up while
+// the previous one was written) or at GROUP_MAX_ROWS rows, whichever comes first, and is written in one
+// IMMEDIATE transaction with prepared statements. No submission is answered before the commit that holds it is on
 // disk, so a crash (of the process, of the machine, of the power) loses nothing acknowledged:
 //
 // - On a WAL database (the product's), the commit itself runs at synchronous=NORMAL, which writes the
 //   WAL frames but does not fsync them, and the writer then fsyncs the WAL file on libuv's thread pool
 //   and answers the group's submissions when that fsync completes. That is the guarantee of
 //   synchronous=FULL (the WAL is synced after each commit) without blocking the event loop for the
-//   fsync; groups committed while one fsync is in flight share the next. A checkpoint that moves frames
+//   fsync; groups committed while one fsync is in flight share the next (or, with overlappingSyncs, on
+//   the writer thread, each group gets its own fsync at once). A checkpoint that moves frames
 //   into the database file fsyncs it first (SQLite does that at NORMAL), so frames overwritten after a
 //   checkpoint are already durable there.
 // - Otherwise (a rollback-journal or in-memory database: some tests) the commit runs at
