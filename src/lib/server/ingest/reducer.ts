@@ -47,17 +47,25 @@ const HANDOFF_MAX_ROWS = 50_000;
 /** Raw readings packed five numbers each: seq, timeMs, ratio, currentMilliAmp, channel. */
 export const PACKED_STRIDE = 5;
 
-export function packRows(rows: readonly { seq: number; timeMs: number; ratio: number; currentMilliAmp: number; channel: number }[]): Float64Array {
+type RawRow = { seq: number; timeMs: number; ratio: number; currentMilliAmp: number; channel: number };
+
+export function packRows(rows: readonly RawRow[]): Float64Array {
 	const out = new Float64Array(rows.length * PACKED_STRIDE);
-	for (let i = 0, o = 0; i < rows.length; i++, o += PACKED_STRIDE) {
-		const r = rows[i];
+	packRowsInto(out, 0, rows);
+	return out;
+}
+
+/** Writes rows in the packed layout into `out` from offset `o`; returns the offset after them. */
+export function packRowsInto(out: Float64Array, o: number, rows: readonly RawRow[]): number {
+	for (const r of rows) {
 		out[o] = r.seq;
 		out[o + 1] = r.timeMs;
 		out[o + 2] = r.ratio;
 		out[o + 3] = r.currentMilliAmp;
 		out[o + 4] = r.channel;
+		o += PACKED_STRIDE;
 	}
-	return out;
+	return o;
 }
 
 /**

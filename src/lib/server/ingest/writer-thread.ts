@@ -19,7 +19,7 @@ import type SQLite from 'better-sqlite3';
 import { openSqlite } from '../db/connection';
 import { GROUP_MAX_ROWS, GROUP_WINDOW_MS, LAST_USED_WRITE_INTERVAL_MS } from './limits';
 import type { CommitRowsMessage } from './downstream';
-import { packRows } from './reducer';
+import { PACKED_STRIDE, packRows, packRowsInto } from './reducer';
 import type { ValidReading } from './validate';
 import { GroupCommitWriter, type ReadingWriter, type Submission, type SubmissionResult } from './writer';
 
@@ -27,8 +27,8 @@ import { GroupCommitWriter, type ReadingWriter, type Submission, type Submission
 export type OnCommitRows = (runId: number, rows: Float64Array) => void;
 
 const WORKER_FLAG = 'stillpoint-writer';
-/** Floats per reading in a packed submission: seq, timeMs, ratio, currentMilliAmp, channel. */
-const READING_FLOATS = 5;
+/** Floats per reading in a packed submission: the reducer's packed layout (packRows). */
+const READING_FLOATS = PACKED_STRIDE;
 /** Floats before a submission's readings: id, runId, tokenId (-1: none), reading count. */
 const HEAD_FLOATS = 4;
 /** Submitted rows that go to the thread at once rather than at the end of the event loop's turn. */
@@ -61,13 +61,7 @@ export function packSubmissions(subs: readonly PackedSubmission[]): Float64Array
 		out[o++] = s.runId;
 		out[o++] = s.tokenId ?? -1;
 		out[o++] = s.readings.length;
-		for (const r of s.readings) {
-			out[o++] = r.seq;
-			out[o++] = r.timeMs;
-			out[o++] = r.ratio;
-			out[o++] = r.currentMilliAmp;
-			out[o++] = r.channel;
-		}
+		o = packRowsInto(out, o, s.readings);
 	}
 	return out;
 }
